@@ -1,0 +1,118 @@
+# psik - build, test, docs. GNU make. See DEVELOPERS.md.
+#
+#   make            libraries (build/lib) and the psik tool (build/bin/psik)
+#   make check      every test, then one line "N passed, N failed"
+#   make demo       the main job on the bundled demo data
+#   make docs       Doxygen HTML in build/docs (fails on any warning)
+#   make bench      speed, as ratios to a baseline run in the same process
+
+CC       ?= cc
+CXX      ?= c++
+STD      ?= c99
+OPT      ?= -O2
+WARN      = -Wall -Wextra -Wpedantic -Werror
+CFLAGS_LIB = -std=$(STD) $(OPT) $(WARN) -fPIC -fvisibility=hidden -DPSIK_BUILDING -Iinclude -Ilib
+CFLAGS_T  = -std=$(STD) $(OPT) -g $(WARN) -Iinclude -Ilib -Itests/unit
+LDLIBS    = -lm
+SAN       = -fsanitize=address,undefined -fno-sanitize-recover=all -fno-omit-frame-pointer
+
+VERSION  := $(shell sed -n 's/^\#define PSIK_VERSION "\(.*\)"/\1/p' include/psik.h)
+# SONAME major = the binary interface version (PSIK_ABI_VERSION); the file
+# name adds the minor and patch of the release: libpsik.so.1.<minor>.<patch>.
+SOMAJOR  := $(shell sed -n 's/^\#define PSIK_ABI_VERSION \([0-9]*\)/\1/p' include/psik.h)
+SOVER    := $(SOMAJOR).$(word 2,$(subst ., ,$(VERSION))).$(word 3,$(subst ., ,$(VERSION)))
+B        := build
+
+# Library sources: every lib/*.c is one concern (DEVELOPERS.md).
+LIB_SRC  := $(sort $(wildcard lib/*.c))
+LIB_OBJ  := $(LIB_SRC:lib/%.c=$(B)/obj/%.o)
+LIB_A    := $(B)/lib/libpsik.a
+LIB_SO   := $(B)/lib/libpsik.so
+LIB_SOV  := $(B)/lib/libpsik.so.$(SOVER)
+LIB_SOM  := $(B)/lib/libpsik.so.$(SOMAJOR)
+
+# Unit tests: tests/unit/test_*.c, each a cmocka program; helpers in
+# tests/unit/*.c that are not test_*.c are linked into every test.
+T_SRC    := $(sort $(wildcard tests/unit/test_*.c))
+T_HELP   := $(filter-out $(T_SRC),$(sort $(wildcard tests/unit/*.c)))
+T_BIN    := $(T_SRC:tests/unit/%.c=$(B)/tests/%)
+T_ASAN   := $(T_SRC:tests/unit/%.c=$(B)/asan/%)
+
+CLI_SRC  := $(sort $(wildcard examples/cli/*.c))
+CLI_BIN  := $(B)/bin/psik
+
+.PHONY: all lib check test-unit test-asan test-cxx demo docs bench clean deps
+all: lib $(if $(CLI_SRC),$(CLI_BIN))
+
+lib: $(LIB_A) $(LIB_SO)
+
+$(B)/obj/%.o: lib/%.c include/psik.h lib/psik_internal.h
+	@mkdir -p $(dir $@)
+	$(CC) $(CFLAGS_LIB) -c $< -o $@
+
+$(LIB_A): $(LIB_OBJ)
+	@mkdir -p $(dir $@)
+	rm -f $@
+	ar rcs $@ $^
+
+$(LIB_SOV): $(LIB_OBJ) lib/psik.map
+	@mkdir -p $(dir $@)
+	$(CC) -shared -Wl,-soname,libpsik.so.$(SOMAJOR) -Wl,--version-script=lib/psik.map \
+	    -Wl,--no-undefined -o $@ $(LIB_OBJ) $(LDLIBS)
+
+$(LIB_SO): $(LIB_SOV)
+	ln -sf libpsik.so.$(SOVER) $(LIB_SOM)
+	ln -sf libpsik.so.$(SOMAJOR) $@
+
+$(CLI_BIN): $(CLI_SRC) $(LIB_A)
+	@mkdir -p $(dir $@)
+	$(CC) -std=$(STD) $(OPT) $(WARN) -Iinclude -o $@ $(CLI_SRC) $(LIB_A) $(LDLIBS)
+
+# ---------------------------------------------------------------- tests
+# make check installs what the tests need (deps), builds the tests plainly
+# and under AddressSanitizer + UBSan, runs everything and prints the total.
+check: deps all
+	@$(MAKE) --no-print-directory test-build
+	@sh tests/run_all.sh $(B)
+
+deps:
+	@sh tests/deps.sh
+
+.PHONY: test-build
+test-build: $(T_BIN) $(T_ASAN) $(B)/tests/cxx_header $(B)/tests/c11_header
+
+$(B)/tests/%: tests/unit/%.c $(T_HELP) $(LIB_A) tests/unit/*.h
+	@mkdir -p $(dir $@)
+	$(CC) $(CFLAGS_T) -o $@ $< $(T_HELP) $(LIB_A) -lcmocka $(LDLIBS)
+
+$(B)/asan/%: tests/unit/%.c $(T_HELP) $(LIB_SRC) tests/unit/*.h include/psik.h lib/psik_internal.h
+	@mkdir -p $(dir $@)
+	$(CC) $(CFLAGS_T) -O1 $(SAN) -Ilib -o $@ $< $(T_HELP) $(LIB_SRC) -lcmocka $(LDLIBS)
+
+# The public header compiles as C++ and as C11 (DESIGN.md).
+$(B)/tests/cxx_header: tests/header/header_cxx.cpp include/psik.h $(LIB_A)
+	@mkdir -p $(dir $@)
+	$(CXX) -std=c++11 -Wall -Wextra -Wpedantic -Werror -Iinclude -o $@ $< $(LIB_A) $(LDLIBS)
+
+$(B)/tests/c11_header: tests/header/header_c11.c include/psik.h $(LIB_A)
+	@mkdir -p $(dir $@)
+	$(CC) -std=c11 -Wall -Wextra -Wpedantic -Werror -Iinclude -o $@ $< $(LIB_A) $(LDLIBS)
+
+# ---------------------------------------------------------------- demo, docs
+demo: $(B)/bin/vg_demo
+	@$(B)/bin/vg_demo
+
+$(B)/bin/vg_demo: examples/vg_demo.c $(LIB_A)
+	@mkdir -p $(dir $@)
+	$(CC) -std=$(STD) $(OPT) $(WARN) -Iinclude -o $@ $< $(LIB_A) $(LDLIBS)
+
+docs:
+	@command -v doxygen >/dev/null || { echo "doxygen is missing: apt-get install doxygen"; exit 1; }
+	@mkdir -p $(B)/docs
+	doxygen Doxyfile > $(B)/docs/doxygen.log 2> $(B)/docs/warnings.log; \
+	    st=$$?; cat $(B)/docs/warnings.log; \
+	    if [ $$st -ne 0 ] || [ -s $(B)/docs/warnings.log ]; then echo "docs: doxygen reported warnings"; exit 1; fi
+	@echo "docs: $(B)/docs/html/index.html"
+
+clean:
+	rm -rf $(B)

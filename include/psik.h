@@ -1,0 +1,256 @@
+/**
+ * @file psik.h
+ * @brief psik: unsaturated-soil hydraulic functions (the only public header).
+ *
+ * psik evaluates published water-retention and conductivity models
+ * (van Genuchten, Brooks-Corey, Kosugi, Durner, Gardner, with the Mualem or
+ * Burdine pore-space conductivity models) and their derivatives and
+ * inverses, with the care that flow solvers need at the wet and dry ends.
+ *
+ * @par Sign and unit conventions
+ * - @c h is the pressure head: negative in unsaturated soil; @c h >= 0 is
+ *   saturated. Entry and median heads (h_e, h_b, h_m) are pressure heads
+ *   too, so they are negative numbers.
+ * - Units are the caller's: @c alpha is in 1/(unit of h); @c K has the unit
+ *   of @c ks. Water contents are volumetric (m^3/m^3).
+ * - Effective saturation Se = (theta - theta_r)/(theta_s - theta_r).
+ *
+ * @par Semantics common to every evaluator
+ * - h at or above the saturation head (0, or h_e / h_b where a model has
+ *   an entry head) gives Se = 1, theta = theta_s, K = ks, C = 0, dK/dh = 0.
+ * - NaN in gives NaN out. A NULL or uninitialised model gives NaN.
+ * - Every finite h gives finite values with theta_r <= theta <= theta_s,
+ *   0 <= Kr <= 1, C >= 0 and dK/dh >= 0. Where the true value exceeds the
+ *   largest double (dK/dh of van Genuchten-Mualem with n < 2 as h -> 0-,
+ *   which grows like (alpha|h|)^(n-2)) the result is DBL_MAX, never inf
+ *   or NaN.
+ * - h = -infinity is the dry limit: Se = 0, K = 0, C = 0, dK/dh = 0.
+ *
+ * @par Accuracy
+ * The goal for every function is a relative error of at most
+ * 4 ulp x max(1, kappa), where kappa = |x f'(x) / f(x)| is the condition
+ * number of the function in its argument. The tests measure this against
+ * tables computed with mpmath at 600 and 1200 digits; README.md lists the
+ * figures measured per function and per kind.
+ *
+ * @par Thread safety
+ * No function reads or writes global state, allocates memory in an
+ * evaluation path, or prints. A model is plain data: many threads may
+ * evaluate one shared model at once.
+ */
+#ifndef PSIK_H
+#define PSIK_H
+
+#include <stddef.h>
+
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+/** @cond PSIK_INTERNAL */
+#ifndef PSIK_API
+#  if defined(PSIK_STATIC)
+#    define PSIK_API static
+#  elif defined(__GNUC__) && defined(PSIK_BUILDING)
+#    define PSIK_API __attribute__((visibility("default")))
+#  else
+#    define PSIK_API
+#  endif
+#endif
+/** @endcond */
+
+/** Version of this header, "major.minor.patch". */
+#define PSIK_VERSION "0.1.0"
+/** Version of the binary interface; changes whenever a struct layout changes. */
+#define PSIK_ABI_VERSION 1
+/** Largest number of parameters of any kind. */
+#define PSIK_MAX_PARAMS 16
+
+/** Status codes. psik_strerror() gives each one as text. */
+typedef enum {
+    PSIK_OK = 0,   /**< success */
+    PSIK_EINVAL,   /**< invalid argument: NULL pointer, unknown kind, bad count */
+    PSIK_EDOMAIN,  /**< a parameter is outside the model's domain */
+    PSIK_ENOCONV,  /**< an iteration did not converge */
+    PSIK_EDATA,    /**< unusable data (too few points, NaN, out of range) */
+    PSIK_ENOMEM,   /**< out of memory or workspace too small */
+    PSIK_EABI      /**< the caller's header does not match the library */
+} psik_status;
+
+/** The models. Parameter vectors are listed with psik_param_name(). */
+typedef enum {
+    PSIK_VGM = 1,     /**< van Genuchten (1980) retention, Mualem K, m = 1 - 1/n:
+                           theta_r theta_s alpha n ks l */
+    PSIK_VGM_AE,      /**< van Genuchten-Mualem with air-entry head h_e
+                           (Vogel et al. 2001; Ippisch et al. 2006):
+                           theta_r theta_s alpha n ks l h_e */
+    PSIK_VG_FREE_M,   /**< van Genuchten with free m, Mualem K through the
+                           incomplete beta function: theta_r theta_s alpha n m ks l */
+    PSIK_VGB,         /**< van Genuchten, Burdine K, m = 1 - 2/n (n > 2):
+                           theta_r theta_s alpha n ks */
+    PSIK_BCM,         /**< Brooks & Corey (1964), Mualem K: theta_r theta_s h_b lambda ks l */
+    PSIK_BCB,         /**< Brooks & Corey (1964), Burdine K: theta_r theta_s h_b lambda ks */
+    PSIK_KOSUGI,      /**< Kosugi (1996) lognormal, Mualem K: theta_r theta_s h_m sigma ks l */
+    PSIK_DURNER2,     /**< Durner (1994) bimodal van Genuchten, Mualem K:
+                           theta_r theta_s w1 alpha1 n1 alpha2 n2 ks l */
+    PSIK_DURNER3,     /**< Durner (1994) trimodal:
+                           theta_r theta_s w1 alpha1 n1 w2 alpha2 n2 alpha3 n3 ks l */
+    PSIK_GARDNER      /**< Gardner (1958) exponential, Se = Kr = exp(alpha h):
+                           theta_r theta_s alpha ks */
+} psik_kind;
+
+/**
+ * A model: plain data of fixed size, copyable with memcpy, no pointers.
+ * Fill it only with psik_init() or psik_vgm(); the fields are documented
+ * so that bindings can mirror the layout, not to be written by hand.
+ */
+typedef struct psik_model {
+    int kind;                    /**< psik_kind; 0 when not initialised */
+    int npar;                    /**< number of parameters of the kind */
+    unsigned int abi_size;       /**< sizeof(psik_model) seen by the library */
+    unsigned int abi_version;    /**< PSIK_ABI_VERSION of the library */
+    double par[PSIK_MAX_PARAMS]; /**< the parameters as given, in kind order */
+    double theta_r;              /**< residual water content */
+    double theta_s;              /**< saturated water content */
+    double ks;                   /**< saturated conductivity */
+    double h_sat;                /**< saturated at and above this head (0, h_e or h_b) */
+    double aux[PSIK_MAX_PARAMS]; /**< constants derived by psik_init, kind-specific */
+} psik_model;
+
+/** All hydraulic properties at one head, as psik_eval() returns them. */
+typedef struct psik_state {
+    double se;        /**< effective saturation, [0, 1] */
+    double theta;     /**< water content, [theta_r, theta_s] */
+    double kr;        /**< relative conductivity, [0, 1] */
+    double k;         /**< conductivity K = ks Kr */
+    double capacity;  /**< water capacity C = d theta / d h >= 0 */
+    double dk_dh;     /**< d K / d h >= 0 */
+} psik_state;
+
+/** @name Library information */
+/**@{*/
+/** A constant English sentence describing @p s; never NULL. */
+PSIK_API const char *psik_strerror(psik_status s);
+/** The library's version string, e.g. "0.1.0". */
+PSIK_API const char *psik_version(void);
+/**@}*/
+
+/** @name The kinds table */
+/**@{*/
+/** Short name of a kind ("vgm", "vgm_ae", "vg_free_m", "vgb", "bcm", "bcb",
+ *  "kosugi", "durner2", "durner3", "gardner"); NULL when unknown. */
+PSIK_API const char *psik_kind_name(psik_kind kind);
+/** One-line description with the published reference; NULL when unknown. */
+PSIK_API const char *psik_kind_title(psik_kind kind);
+/** The kind with short name @p name (exact, case-sensitive); 0 when unknown or NULL. */
+PSIK_API psik_kind psik_kind_from_name(const char *name);
+/** Number of parameters of @p kind; -1 when unknown. */
+PSIK_API int psik_param_count(psik_kind kind);
+/** Name of parameter @p i (0-based) of @p kind, e.g. "theta_r"; NULL when out of range. */
+PSIK_API const char *psik_param_name(psik_kind kind, int i);
+/** Index of the parameter named @p name in @p kind; -1 when there is none. */
+PSIK_API int psik_param_index(psik_kind kind, const char *name);
+/**
+ * A plausible range for parameter @p i of @p kind (used as default fitting
+ * bounds; wider values may still be valid). Writes *lo and *hi.
+ * @return PSIK_OK, or PSIK_EINVAL for an unknown kind, index or NULL pointer.
+ */
+PSIK_API psik_status psik_param_range(psik_kind kind, int i, double *lo, double *hi);
+/**@}*/
+
+/** @name Building a model */
+/**@{*/
+/**
+ * Validate a parameter vector without building a model.
+ * @param kind  the model
+ * @param par   psik_param_count(kind) parameters in kind order
+ * @param msg   buffer for a sentence naming the offending parameter and the
+ *              rule, e.g. "n must be greater than 1 (got 0.9)"; may be NULL
+ * @param cap   size of @p msg in bytes (the text is always NUL-terminated
+ *              when cap > 0)
+ * @return PSIK_OK; PSIK_EINVAL for an unknown kind or NULL @p par;
+ *         PSIK_EDOMAIN for a parameter outside its domain.
+ */
+PSIK_API psik_status psik_check(psik_kind kind, const double *par, char *msg, size_t cap);
+
+/**
+ * Build a model from a parameter vector (copied; @p par is not kept).
+ * On failure *m is left with kind = 0, so every evaluator returns NaN.
+ * Prefer calling it through the macro of the same name, which also passes
+ * the header's idea of the struct layout.
+ * @return PSIK_OK, PSIK_EINVAL (NULL pointer, unknown kind),
+ *         PSIK_EDOMAIN (invalid parameter: psik_check() says which).
+ */
+PSIK_API psik_status psik_init(psik_model *m, psik_kind kind, const double *par);
+
+/**
+ * psik_init() with a layout check: @p abi_version and @p size are the
+ * caller's PSIK_ABI_VERSION and sizeof(psik_model). A mismatch returns
+ * PSIK_EABI and writes nothing.
+ */
+PSIK_API psik_status psik_init_abi(psik_model *m, psik_kind kind, const double *par,
+                                   int abi_version, size_t size);
+
+/** van Genuchten-Mualem with l = 0.5 (the common default, Mualem 1976). */
+PSIK_API psik_status psik_vgm(psik_model *m, double theta_r, double theta_s,
+                              double alpha, double n, double ks);
+
+/** Number of parameters of an initialised model (0 for NULL or uninitialised),
+ *  and a copy of them in @p par when it is not NULL. */
+PSIK_API int psik_model_params(const psik_model *m, double *par);
+
+/** psik_init() through the layout check (zlib style). Call as psik_init(m, kind, par). */
+#define psik_init(m, kind, par) \
+    psik_init_abi((m), (kind), (par), PSIK_ABI_VERSION, sizeof(psik_model))
+/**@}*/
+
+/**
+ * @name Evaluators
+ * All take the pressure head @p h (or a water content / saturation for the
+ * inverses). Errors stated are relative, in units of the last place (ulp),
+ * times max(1, kappa) with kappa the condition number; see README.md for
+ * the figures measured per kind.
+ */
+/**@{*/
+/** Effective saturation Se(h) in [0, 1]. */
+PSIK_API double psik_se(const psik_model *m, double h);
+/** Water content theta(h) = theta_r + (theta_s - theta_r) Se(h). */
+PSIK_API double psik_theta(const psik_model *m, double h);
+/** Pressure head at water content @p theta (inverse of psik_theta):
+ *  0 for theta >= theta_s, -INFINITY for theta <= theta_r, NaN for NaN. */
+PSIK_API double psik_head(const psik_model *m, double theta);
+/** Pressure head at effective saturation @p se (inverse of psik_se):
+ *  0 for se >= 1, -INFINITY for se <= 0, NaN for NaN. */
+PSIK_API double psik_head_se(const psik_model *m, double se);
+/** Relative conductivity Kr(h) in [0, 1]. */
+PSIK_API double psik_kr(const psik_model *m, double h);
+/** Conductivity K(h) = ks Kr(h). */
+PSIK_API double psik_k(const psik_model *m, double h);
+/** Conductivity as a function of water content (computed from Se directly,
+ *  not through a rounded head): ks for theta >= theta_s, 0 for theta <= theta_r. */
+PSIK_API double psik_k_theta(const psik_model *m, double theta);
+/** Water capacity C(h) = d theta / d h >= 0 (0 when saturated). */
+PSIK_API double psik_capacity(const psik_model *m, double h);
+/** d K / d h >= 0 (0 when saturated). */
+PSIK_API double psik_dk_dh(const psik_model *m, double h);
+/** Diffusivity D(theta) = K / C at the head where the water content is
+ *  @p theta. For theta >= theta_s it is the limit from below (+INFINITY for
+ *  models whose capacity vanishes at saturation); 0 for theta <= theta_r. */
+PSIK_API double psik_diffusivity(const psik_model *m, double theta);
+/** All of Se, theta, Kr, K, C and dK/dh at once, sharing the expensive
+ *  terms; the same values as the single functions. NULL @p out is ignored. */
+PSIK_API void psik_eval(const psik_model *m, double h, psik_state *out);
+/**
+ * psik_eval over @p count heads. Any output pointer may be NULL: that output
+ * is skipped. Outputs may not overlap @p h. NULL @p m or @p h with count > 0
+ * writes NaN to the outputs given.
+ */
+PSIK_API void psik_eval_batch(const psik_model *m, size_t count, const double *h,
+                              double *theta, double *k, double *capacity, double *dk_dh);
+/**@}*/
+
+#ifdef __cplusplus
+}
+#endif
+
+#endif /* PSIK_H */

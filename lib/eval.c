@@ -1,0 +1,256 @@
+/* eval.c - psik_se ... psik_eval_batch: the special cases common to every
+ * kind, then dispatch through the kinds table.
+ *
+ * Special cases, in order: NULL or uninitialised model -> NaN; NaN -> NaN;
+ * h >= h_sat -> saturated values; otherwise the family computes at suction
+ * s = -h > 0. Results are clamped into their physical ranges (which only
+ * matters for values that overflow: dK/dh near saturation for n < 2).
+ */
+#include "psik_internal.h"
+
+#include <float.h>
+#include <math.h>
+
+static const psik_family *fam(const psik_model *m)
+{
+    if (m == NULL)
+        return NULL;
+    return psik__family(m->kind);
+}
+
+/* Finite and non-negative: overflowed derivatives become DBL_MAX. */
+static double clamp_pos(double v)
+{
+    if (!(v >= 0.0))      /* negative rounding residue (or NaN from 0 * inf) */
+        return 0.0;
+    return v > DBL_MAX ? DBL_MAX : v;
+}
+
+static double clamp01(double v)
+{
+    if (!(v > 0.0))
+        return 0.0;
+    return v > 1.0 ? 1.0 : v;
+}
+
+static double theta_of(const psik_model *m, double se)
+{
+    double t = m->theta_r + (m->theta_s - m->theta_r) * se;
+    return t > m->theta_s ? m->theta_s : t;
+}
+
+/* Unsaturated point with clamping; s > 0. */
+static void point_at(const psik_family *f, const psik_model *m, double s, psik_point *p)
+{
+    f->point(m, s, p);
+    p->se = clamp01(p->se);
+    p->kr = clamp01(p->kr);
+    p->dse = clamp_pos(p->dse);
+    p->dkr = clamp_pos(p->dkr);
+}
+
+PSIK_API double psik_se(const psik_model *m, double h)
+{
+    const psik_family *f = fam(m);
+    if (f == NULL || isnan(h))
+        return NAN;
+    if (h >= m->h_sat)
+        return 1.0;
+    return clamp01(f->se(m, -h));
+}
+
+PSIK_API double psik_theta(const psik_model *m, double h)
+{
+    const psik_family *f = fam(m);
+    if (f == NULL || isnan(h))
+        return NAN;
+    if (h >= m->h_sat)
+        return m->theta_s;
+    return theta_of(m, clamp01(f->se(m, -h)));
+}
+
+PSIK_API double psik_kr(const psik_model *m, double h)
+{
+    const psik_family *f = fam(m);
+    if (f == NULL || isnan(h))
+        return NAN;
+    if (h >= m->h_sat)
+        return 1.0;
+    return clamp01(f->kr(m, -h));
+}
+
+PSIK_API double psik_k(const psik_model *m, double h)
+{
+    const psik_family *f = fam(m);
+    if (f == NULL || isnan(h))
+        return NAN;
+    if (h >= m->h_sat)
+        return m->ks;
+    return m->ks * clamp01(f->kr(m, -h));
+}
+
+PSIK_API double psik_capacity(const psik_model *m, double h)
+{
+    const psik_family *f = fam(m);
+    psik_point p;
+    if (f == NULL || isnan(h))
+        return NAN;
+    if (h >= m->h_sat)
+        return 0.0;
+    point_at(f, m, -h, &p);
+    return clamp_pos((m->theta_s - m->theta_r) * p.dse);
+}
+
+PSIK_API double psik_dk_dh(const psik_model *m, double h)
+{
+    const psik_family *f = fam(m);
+    psik_point p;
+    if (f == NULL || isnan(h))
+        return NAN;
+    if (h >= m->h_sat)
+        return 0.0;
+    point_at(f, m, -h, &p);
+    return clamp_pos(m->ks * p.dkr);
+}
+
+PSIK_API void psik_eval(const psik_model *m, double h, psik_state *out)
+{
+    const psik_family *f = fam(m);
+    psik_point p;
+    if (out == NULL)
+        return;
+    if (f == NULL || isnan(h)) {
+        out->se = out->theta = out->kr = out->k = NAN;
+        out->capacity = out->dk_dh = NAN;
+        return;
+    }
+    if (h >= m->h_sat) {
+        out->se = 1.0;
+        out->theta = m->theta_s;
+        out->kr = 1.0;
+        out->k = m->ks;
+        out->capacity = 0.0;
+        out->dk_dh = 0.0;
+        return;
+    }
+    point_at(f, m, -h, &p);
+    out->se = p.se;
+    out->theta = theta_of(m, p.se);
+    out->kr = p.kr;
+    out->k = m->ks * p.kr;
+    out->capacity = clamp_pos((m->theta_s - m->theta_r) * p.dse);
+    out->dk_dh = clamp_pos(m->ks * p.dkr);
+}
+
+PSIK_API void psik_eval_batch(const psik_model *m, size_t count, const double *h,
+                              double *theta, double *k, double *capacity, double *dk_dh)
+{
+    size_t i;
+    psik_state st;
+    if (h == NULL) {
+        for (i = 0; i < count; i++) {
+            if (theta) theta[i] = NAN;
+            if (k) k[i] = NAN;
+            if (capacity) capacity[i] = NAN;
+            if (dk_dh) dk_dh[i] = NAN;
+        }
+        return;
+    }
+    for (i = 0; i < count; i++) {
+        psik_eval(m, h[i], &st);
+        if (theta) theta[i] = st.theta;
+        if (k) k[i] = st.k;
+        if (capacity) capacity[i] = st.capacity;
+        if (dk_dh) dk_dh[i] = st.dk_dh;
+    }
+}
+
+/* Effective saturation from water content: exact subtraction near theta_r
+ * and theta_s (Sterbenz), one rounding in the division. */
+static double se_of_theta(const psik_model *m, double theta)
+{
+    return (theta - m->theta_r) / (m->theta_s - m->theta_r);
+}
+
+PSIK_API double psik_head_se(const psik_model *m, double se)
+{
+    const psik_family *f = fam(m);
+    double s;
+    if (f == NULL || isnan(se))
+        return NAN;
+    if (se >= 1.0)
+        return 0.0;
+    if (se <= 0.0)
+        return -INFINITY;
+    s = f->suction(m, se);
+    if (!(s > -m->h_sat))       /* never report a head inside the saturated range */
+        s = -m->h_sat;
+    return -s;
+}
+
+PSIK_API double psik_head(const psik_model *m, double theta)
+{
+    if (fam(m) == NULL || isnan(theta))
+        return NAN;
+    if (theta >= m->theta_s)
+        return 0.0;
+    if (theta <= m->theta_r)
+        return -INFINITY;
+    return psik_head_se(m, se_of_theta(m, theta));
+}
+
+/* Point at saturation se in (0,1): the family's direct form when it has
+ * one, otherwise through the suction. */
+static void point_of_se(const psik_family *f, const psik_model *m, double se, psik_point *p)
+{
+    if (f->point_se != NULL) {
+        f->point_se(m, se, p);
+        p->se = se;
+        p->kr = clamp01(p->kr);
+        p->dse = clamp_pos(p->dse);
+        p->dkr = clamp_pos(p->dkr);
+    } else {
+        point_at(f, m, f->suction(m, se), p);
+    }
+}
+
+PSIK_API double psik_k_theta(const psik_model *m, double theta)
+{
+    const psik_family *f = fam(m);
+    psik_point p;
+    double se;
+    if (f == NULL || isnan(theta))
+        return NAN;
+    if (theta >= m->theta_s)
+        return m->ks;
+    if (theta <= m->theta_r)
+        return 0.0;
+    se = se_of_theta(m, theta);
+    if (se >= 1.0)
+        return m->ks;
+    point_of_se(f, m, se, &p);
+    return m->ks * p.kr;
+}
+
+PSIK_API double psik_diffusivity(const psik_model *m, double theta)
+{
+    const psik_family *f = fam(m);
+    psik_point p;
+    double se, c;
+    if (f == NULL || isnan(theta))
+        return NAN;
+    if (theta <= m->theta_r)
+        return 0.0;
+    se = se_of_theta(m, theta);
+    if (theta >= m->theta_s || se >= 1.0) {
+        /* limit from below: capacity just below the saturation head */
+        point_at(f, m, -m->h_sat, &p);
+        c = (m->theta_s - m->theta_r) * p.dse;
+        return c > 0.0 ? m->ks / c : INFINITY;
+    }
+    point_of_se(f, m, se, &p);
+    c = (m->theta_s - m->theta_r) * p.dse;
+    if (!(c > 0.0))
+        return INFINITY;
+    return m->ks * p.kr / c;
+}

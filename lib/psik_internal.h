@@ -1,0 +1,89 @@
+/* psik_internal.h - the kinds table and helpers shared by lib/ (not installed).
+ *
+ * A model family fills one psik_family row. Every function pointer below
+ * works on the unsaturated branch only: the dispatch in eval.c has already
+ * handled NaN, NULL models and heads at or above m->h_sat, so a family sees
+ * a suction s = -h with s > -h_sat (s may be +inf), or an effective
+ * saturation 0 < se < 1.
+ */
+#ifndef PSIK_INTERNAL_H
+#define PSIK_INTERNAL_H
+
+#include "psik.h"
+
+/* Internal helpers are static in the single-header build, hidden otherwise. */
+#if defined(PSIK_STATIC) || defined(PSIK_SINGLE)
+#  define PSIK_HIDDEN static
+#elif defined(__GNUC__)
+#  define PSIK_HIDDEN __attribute__((visibility("hidden")))
+#else
+#  define PSIK_HIDDEN
+#endif
+
+/* One parameter of a kind. lo/hi: the plausible range psik_param_range()
+ * reports (default fitting bounds). Validation rules live in check(). */
+typedef struct psik_param_info {
+    const char *name;
+    double lo, hi;
+} psik_param_info;
+
+/* Values at one point of the unsaturated branch. */
+typedef struct psik_point {
+    double se;    /* effective saturation */
+    double kr;    /* relative conductivity */
+    double dse;   /* d Se / d h  (>= 0) */
+    double dkr;   /* d Kr / d h  (>= 0) */
+} psik_point;
+
+typedef struct psik_family {
+    psik_kind kind;
+    const char *name;             /* short name, e.g. "vgm" */
+    const char *title;            /* one line with the reference */
+    int npar;
+    const psik_param_info *param; /* npar entries */
+    int ks_index;                 /* index of ks in par */
+    /* Kind-specific rules, after the common ones (finite values,
+     * 0 <= theta_r < theta_s <= 1, ks > 0) have passed. Writes msg. */
+    psik_status (*check)(const double *par, char *msg, size_t cap);
+    /* Fill m->aux and m->h_sat from m->par (already validated). */
+    void (*prepare)(psik_model *m);
+    /* All four values at suction s (fused). */
+    void (*point)(const psik_model *m, double s, psik_point *out);
+    /* Single values at suction s. */
+    double (*se)(const psik_model *m, double s);
+    double (*kr)(const psik_model *m, double s);
+    /* All four values at effective saturation 0 < se < 1, computed from se
+     * directly (k_theta, diffusivity); out->se = se. */
+    void (*point_se)(const psik_model *m, double se, psik_point *out);
+    /* Suction at effective saturation 0 < se < 1. */
+    double (*suction)(const psik_model *m, double se);
+} psik_family;
+
+/* The table (kinds.c). */
+PSIK_HIDDEN const psik_family *psik__family(int kind);
+
+/* Message helper: writes a formatted sentence into msg (snprintf). */
+PSIK_HIDDEN psik_status psik__fail(char *msg, size_t cap, psik_status st,
+                                   const char *fmt, ...)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 4, 5)))
+#endif
+    ;
+
+/* Special functions (special.c). */
+/* Regularized incomplete beta I_x(a,b) with y = 1 - x given separately (so
+ * either end keeps its digits) and front = x^a y^b / B(a,b) computed by the
+ * caller. Returns I_x(a,b); *comp = 1 - I_x(a,b). Continued fraction
+ * (modified Lentz) on the side where it converges fast; a few ulp. */
+PSIK_HIDDEN double psik__ibeta(double a, double b, double x, double y,
+                               double front, double *comp);
+/* Complete beta function B(a,b) for a, b > 0, from the same continued
+ * fractions as psik__ibeta so that I_1 = 1 to rounding. */
+PSIK_HIDDEN double psik__beta(double a, double b);
+/* x^(e_hi + e_lo) for x > 0, with the exponent carried in two doubles so
+ * that rounding of a derived exponent does not grow with |log x|. */
+PSIK_HIDDEN double psik__pow2(double x, double e_hi, double e_lo);
+/* Split 1/d into hi + lo with hi = fl(1/d). */
+PSIK_HIDDEN void psik__recip2(double num, double den, double *hi, double *lo);
+
+#endif

@@ -1,0 +1,548 @@
+/* vg.c - the van Genuchten (1980) retention family: four rows of the kinds
+ * table (vgm, vgm_ae, vg_free_m, vgb).
+ *
+ * Notation: s = -h > 0 suction, p = alpha s, x = p^n, m the shape exponent,
+ * k = m n, Se = (1 + x)^-m, y = x/(1+x) = 1 - Se^(1/m), r = 1/(1+x),
+ * g = 1 - y^m (the Mualem integral ratio for m = 1 - 1/n).
+ *
+ * Method (shared by every function here):
+ * - Wet branch p <= 1: x = pow(p, n) without overflow, Se = exp(-m log1p x)
+ *   (argument below m log 2, so the exponential adds no error growth).
+ * - Dry branch p > 1: u = 1/x = pow(p, -n), B = log1p(u), and
+ *   Se = p^-k (1+u)^-m for the restricted forms, where k = n - 1 or n - 2 is
+ *   an exact double. The textbook exp(-m log(1 + x)) would carry an error of
+ *   |log Se| ulp at the dry end; this form stays within a few ulp down to
+ *   the smallest double.
+ * - g = 1 - y^m as 1 - y^m when y^m < 1/2 and as -expm1(m log y) otherwise,
+ *   which keeps every digit when m is small (n near 1) and at both ends.
+ * - Derivatives in the same variables: dlnSe/dh = k alpha p^(n-1)/(1+x),
+ *   dg/dh = k alpha y^m/(p (1+x)); the near-saturation singularity of
+ *   dKr/dh for n < 2 comes out as the finite power p^(n-2).
+ * - From Se (inverse, K(theta), D(theta)): x = Se^(-1/m) - 1 with the
+ *   exponent 1/m carried in two doubles (psik__pow2), p = x^(1/n) likewise,
+ *   then the same formulas: no round trip through a rounded head.
+ * Error: see README.md (measured against mpmath, 600 digits).
+ */
+#include "psik_internal.h"
+
+#include <float.h>
+#include <math.h>
+
+/* aux slots */
+#define A_ALPHA 0
+#define A_N     1
+#define A_M     2
+#define A_K     3   /* m n */
+#define A_IM_HI 4   /* 1/m */
+#define A_IM_LO 5
+#define A_IN_HI 6   /* 1/n */
+#define A_IN_LO 7
+#define A_L     8   /* pore connectivity (Mualem kinds) */
+#define A_KEXACT 9  /* 1 when k = m n is exact (m = 1 - 1/n or 1 - 2/n) */
+#define A_SC    10  /* vgm_ae: Se of the unrestricted curve at h_e */
+#define A_GE    11  /* vgm_ae: g at h_e */
+#define A_SE    12  /* vgm_ae: suction at entry, -h_e */
+#define A_XE    13  /* vgm_ae: x at entry */
+#define A_FA    10  /* vg_free_m: a = m + 1/n */
+#define A_FB    11  /* vg_free_m: b = 1 - 1/n */
+#define A_BAB   12  /* vg_free_m: B(a, b) */
+
+typedef struct vg_pt {
+    double p;     /* alpha s */
+    double x;     /* (alpha s)^n on the wet branch */
+    double u;     /* 1/x on the dry branch */
+    double r;     /* 1/(1+x) */
+    double y;     /* x/(1+x) */
+    double se;    /* (1+x)^-m */
+    double ym;    /* y^m */
+    double g;     /* 1 - y^m */
+    double dls;   /* d ln Se / dh */
+    double dg;    /* d g / dh */
+    int wet;
+} vg_pt;
+
+static void vg_finish(const double *a, vg_pt *q)
+{
+    const double alpha = a[A_ALPHA], n = a[A_N], mm = a[A_M], k = a[A_K];
+    const int kexact = a[A_KEXACT] != 0.0;
+    if (q->wet) {
+        if (kexact || q->y < DBL_MIN)
+            q->ym = pow(q->p, k) * q->se;           /* y^m = p^(mn) Se */
+        else
+            q->ym = pow(q->y, mm);
+        q->g = q->ym < 0.5 ? 1.0 - q->ym : -expm1(mm * log(q->y));
+        q->dls = k * alpha * pow(q->p, n - 1.0) * q->r;
+        if (kexact)
+            q->dg = k * alpha * pow(q->p, k - 1.0) * q->se * q->r;
+        else
+            q->dg = k * alpha * (q->ym / q->p) * q->r;
+    } else {
+        double b = log1p(q->u);
+        q->ym = exp(-mm * b);
+        q->g = -expm1(-mm * b);
+        q->dls = k * alpha * q->y / q->p;
+        q->dg = k * alpha * q->ym * q->r / q->p;
+    }
+}
+
+/* The point at suction s > 0 (s may be +inf). */
+static void vg_from_s(const double *a, double s, vg_pt *q)
+{
+    const double alpha = a[A_ALPHA], n = a[A_N], mm = a[A_M], k = a[A_K];
+    double p = alpha * s;
+    q->p = p;
+    if (p <= 1.0) {
+        double x = pow(p, n);
+        q->wet = 1;
+        q->x = x;
+        q->u = 1.0 / x;
+        q->r = 1.0 / (1.0 + x);
+        q->y = x * q->r;
+        q->se = exp(-mm * log1p(x));
+    } else {
+        double u = pow(p, -n), b = log1p(u);
+        q->wet = 0;
+        q->u = u;
+        q->x = 1.0 / u;
+        q->y = 1.0 / (1.0 + u);
+        q->r = u * q->y;
+        if (a[A_KEXACT] != 0.0)
+            q->se = pow(p, -k) * exp(-mm * b);
+        else if (q->r > DBL_MIN)
+            q->se = pow(q->r, mm);
+        else
+            q->se = exp(-mm * (n * log(p) + b));
+    }
+    vg_finish(a, q);
+}
+
+/* The point at 0 < S < 1 of the unrestricted curve. */
+static void vg_from_se(const double *a, double S, vg_pt *q)
+{
+    const double n = a[A_N];
+    const double im_hi = a[A_IM_HI], im_lo = a[A_IM_LO];
+    const double in_hi = a[A_IN_HI], in_lo = a[A_IN_LO];
+    double t = -log(S);                   /* > 0 */
+    q->se = S;
+    if (t * im_hi <= 0.6931471805599453) {   /* x <= 1 */
+        double x = expm1(t * im_hi + t * im_lo);
+        q->wet = 1;
+        q->x = x;
+        q->u = 1.0 / x;
+        q->p = psik__pow2(x, in_hi, in_lo);
+        q->r = 1.0 / (1.0 + x);
+        q->y = x * q->r;
+    } else {
+        double X = psik__pow2(S, -im_hi, -im_lo);   /* 1 + x */
+        q->wet = 0;
+        if (X < 1.0 / DBL_EPSILON) {
+            double x = X - 1.0;
+            q->x = x;
+            q->u = 1.0 / x;
+            q->p = psik__pow2(x, in_hi, in_lo);
+        } else if (isfinite(X)) {
+            q->x = X;                      /* 1 + x = x in double */
+            q->u = 1.0 / X;
+            q->p = psik__pow2(X, in_hi, in_lo);
+        } else {
+            /* Se^(1/m) below the smallest double: work in logs. */
+            double lx = t * im_hi;
+            q->x = INFINITY;
+            q->u = exp(-lx);
+            q->p = exp(lx * in_hi);
+        }
+        q->y = 1.0 / (1.0 + q->u);
+        q->r = q->u * q->y;
+    }
+    (void)n;
+    vg_finish(a, q);
+}
+
+/* Se^L, with 0^L = 0 (the dry limit of Kr, which tends to 0 for every
+ * admitted l). */
+static double se_pow(double se, double L)
+{
+    if (se <= 0.0)
+        return 0.0;
+    return pow(se, L);
+}
+
+/* Mualem: Kr = Se^L G^2, dKr/dh = Se^L G (L G dlnSe/dh + 2 dG/dh). */
+static void mualem_out(double se, double L, double G, double dls, double dG,
+                       psik_point *out)
+{
+    double seL = se_pow(se, L);
+    double kr;
+    if (!isfinite(seL) || G <= 0.0) {
+        /* Se^L overflows only for l < 0 and Se below 1e-300, where G has
+         * underflowed: the product is far below the smallest double. */
+        out->kr = 0.0;
+        out->dkr = 0.0;
+        return;
+    }
+    kr = seL * G * G;
+    out->kr = kr;
+    out->dkr = seL * G * (L * G * dls + 2.0 * dG);
+}
+
+static void set_common(const double *par, double *a, double n, double mm)
+{
+    a[A_ALPHA] = par[2];
+    a[A_N] = n;
+    a[A_M] = mm;
+    psik__recip2(1.0, n, &a[A_IN_HI], &a[A_IN_LO]);
+}
+
+/* ------------------------------------------------------------------ vgm */
+
+static const psik_param_info vgm_param[] = {
+    {"theta_r", 0.0, 0.5},
+    {"theta_s", 0.05, 1.0},
+    {"alpha", 1e-5, 100.0},
+    {"n", 1.001, 20.0},
+    {"ks", 1e-6, 1e5},
+    {"l", -5.0, 10.0},
+};
+
+static psik_status check_alpha_n(const double *par, double nmin, const char *why,
+                                 char *msg, size_t cap)
+{
+    if (!(par[2] > 0.0))
+        return psik__fail(msg, cap, PSIK_EDOMAIN,
+                          "alpha must be greater than 0 (got %g)", par[2]);
+    if (!(par[3] > nmin))
+        return psik__fail(msg, cap, PSIK_EDOMAIN,
+                          "n must be greater than %g%s (got %g)", nmin, why, par[3]);
+    return PSIK_OK;
+}
+
+/* l >= -2/m keeps dKr/dh >= 0 for m = 1 - 1/n: with y in (0,1),
+ * L g y + 2 y^m (1-y) >= 0 iff -L <= 2 y^(m-1)(1-y)/(1-y^m), whose
+ * infimum (y -> 1) is 2/m by the mean value theorem. */
+static psik_status check_l(double L, double lmin, char *msg, size_t cap)
+{
+    if (!(L >= lmin))
+        return psik__fail(msg, cap, PSIK_EDOMAIN,
+                          "l must be at least %.6g for this n (otherwise K would "
+                          "decrease as the soil wets) (got %g)", lmin, L);
+    return PSIK_OK;
+}
+
+static psik_status vgm_check(const double *par, char *msg, size_t cap)
+{
+    psik_status st = check_alpha_n(par, 1.0, "", msg, cap);
+    if (st != PSIK_OK)
+        return st;
+    return check_l(par[5], -2.0 * par[3] / (par[3] - 1.0), msg, cap);
+}
+
+static void vgm_prepare(psik_model *m)
+{
+    double *a = m->aux, n = m->par[3];
+    set_common(m->par, a, n, (n - 1.0) / n);   /* n - 1 is exact for n >= 1 */
+    a[A_K] = n - 1.0;
+    psik__recip2(n, n - 1.0, &a[A_IM_HI], &a[A_IM_LO]);
+    a[A_L] = m->par[5];
+    a[A_KEXACT] = 1.0;
+}
+
+static void vgm_fill(const double *a, const vg_pt *q, psik_point *out)
+{
+    out->se = q->se;
+    out->dse = q->dls * q->se;
+    mualem_out(q->se, a[A_L], q->g, q->dls, q->dg, out);
+}
+
+static void vgm_point(const psik_model *m, double s, psik_point *out)
+{
+    vg_pt q;
+    vg_from_s(m->aux, s, &q);
+    vgm_fill(m->aux, &q, out);
+}
+
+static void vgm_point_se(const psik_model *m, double se, psik_point *out)
+{
+    vg_pt q;
+    vg_from_se(m->aux, se, &q);
+    vgm_fill(m->aux, &q, out);
+}
+
+/* Se alone: the first half of vg_from_s. */
+static double vg_se(const psik_model *m, double s)
+{
+    const double *a = m->aux;
+    const double n = a[A_N], mm = a[A_M];
+    double p = a[A_ALPHA] * s;
+    if (p <= 1.0)
+        return exp(-mm * log1p(pow(p, n)));
+    if (a[A_KEXACT] != 0.0)
+        return pow(p, -a[A_K]) * exp(-mm * log1p(pow(p, -n)));
+    {
+        vg_pt q;
+        vg_from_s(a, s, &q);
+        return q.se;
+    }
+}
+
+static double vgm_kr(const psik_model *m, double s)
+{
+    psik_point out;
+    vgm_point(m, s, &out);
+    return out.kr;
+}
+
+static double vg_suction(const psik_model *m, double se)
+{
+    vg_pt q;
+    vg_from_se(m->aux, se, &q);
+    return q.p / m->aux[A_ALPHA];
+}
+
+const psik_family psik__fam_vgm = {
+    PSIK_VGM, "vgm",
+    "van Genuchten (1980) retention with Mualem (1976) conductivity, m = 1 - 1/n",
+    6, vgm_param, 4,
+    vgm_check, vgm_prepare, vgm_point, vg_se, vgm_kr, vgm_point_se, vg_suction,
+};
+
+/* ---------------------------------------------------------------- vgm_ae */
+
+static const psik_param_info vgm_ae_param[] = {
+    {"theta_r", 0.0, 0.5},
+    {"theta_s", 0.05, 1.0},
+    {"alpha", 1e-5, 100.0},
+    {"n", 1.001, 20.0},
+    {"ks", 1e-6, 1e5},
+    {"l", -5.0, 10.0},
+    {"h_e", -100.0, 0.0},
+};
+
+static psik_status vgm_ae_check(const double *par, char *msg, size_t cap)
+{
+    psik_status st = vgm_check(par, msg, cap);
+    if (st != PSIK_OK)
+        return st;
+    if (!(par[6] <= 0.0))
+        return psik__fail(msg, cap, PSIK_EDOMAIN,
+                          "h_e must be at most 0: it is a pressure head (got %g)", par[6]);
+    return PSIK_OK;
+}
+
+static void vgm_ae_prepare(psik_model *m)
+{
+    double *a = m->aux;
+    vg_pt q;
+    vgm_prepare(m);
+    m->h_sat = m->par[6] == 0.0 ? 0.0 : m->par[6];   /* no -0 */
+    a[A_SE] = -m->h_sat;
+    vg_from_s(a, a[A_SE], &q);
+    a[A_SC] = q.se;
+    a[A_GE] = q.g;
+    a[A_XE] = q.wet ? q.x : INFINITY;
+}
+
+/* Se = S / Sc; on the wet branch as exp(-m log1p((x - xe)/(1 + xe))). */
+static void vgm_ae_fill(const double *a, const vg_pt *q, double se, psik_point *out)
+{
+    double ge = a[A_GE];
+    out->se = se;
+    out->dse = q->dls * se;
+    mualem_out(se, a[A_L], q->g / ge, q->dls, q->dg / ge, out);
+}
+
+static double vgm_ae_se_of(const double *a, const vg_pt *q)
+{
+    if (q->wet && a[A_XE] <= 1.0)
+        return exp(-a[A_M] * log1p((q->x - a[A_XE]) / (1.0 + a[A_XE])));
+    return q->se / a[A_SC];
+}
+
+static void vgm_ae_point(const psik_model *m, double s, psik_point *out)
+{
+    vg_pt q;
+    vg_from_s(m->aux, s, &q);
+    vgm_ae_fill(m->aux, &q, vgm_ae_se_of(m->aux, &q), out);
+}
+
+static void vgm_ae_point_se(const psik_model *m, double se, psik_point *out)
+{
+    vg_pt q;
+    vg_from_se(m->aux, se * m->aux[A_SC], &q);
+    vgm_ae_fill(m->aux, &q, se, out);
+}
+
+static double vgm_ae_se(const psik_model *m, double s)
+{
+    vg_pt q;
+    vg_from_s(m->aux, s, &q);
+    return vgm_ae_se_of(m->aux, &q);
+}
+
+static double vgm_ae_kr(const psik_model *m, double s)
+{
+    psik_point out;
+    vgm_ae_point(m, s, &out);
+    return out.kr;
+}
+
+static double vgm_ae_suction(const psik_model *m, double se)
+{
+    vg_pt q;
+    vg_from_se(m->aux, se * m->aux[A_SC], &q);
+    return q.p / m->aux[A_ALPHA];
+}
+
+const psik_family psik__fam_vgm_ae = {
+    PSIK_VGM_AE, "vgm_ae",
+    "van Genuchten-Mualem with air-entry head h_e "
+    "(Vogel, van Genuchten & Cislerova 2001; Ippisch, Vogel & Bastian 2006)",
+    7, vgm_ae_param, 4,
+    vgm_ae_check, vgm_ae_prepare, vgm_ae_point, vgm_ae_se, vgm_ae_kr,
+    vgm_ae_point_se, vgm_ae_suction,
+};
+
+/* ------------------------------------------------------------- vg_free_m */
+
+static const psik_param_info vg_free_m_param[] = {
+    {"theta_r", 0.0, 0.5},
+    {"theta_s", 0.05, 1.0},
+    {"alpha", 1e-5, 100.0},
+    {"n", 1.001, 20.0},
+    {"m", 0.01, 10.0},
+    {"ks", 1e-6, 1e5},
+    {"l", -5.0, 10.0},
+};
+
+/* l >= -(2 + 2/(m n)) keeps dKr/dh >= 0: d ln I_z(a,b)/d ln z >= a because
+ * (1-t)^(b-1) increases in t for b < 1, and d ln z / d ln Se = 1/m. */
+static psik_status vg_free_m_check(const double *par, char *msg, size_t cap)
+{
+    psik_status st = check_alpha_n(par, 1.0, "", msg, cap);
+    if (st != PSIK_OK)
+        return st;
+    if (!(par[4] > 0.0))
+        return psik__fail(msg, cap, PSIK_EDOMAIN,
+                          "m must be greater than 0 (got %g)", par[4]);
+    return check_l(par[6], -(2.0 + 2.0 / (par[4] * par[3])), msg, cap);
+}
+
+static void vg_free_m_prepare(psik_model *m)
+{
+    double *a = m->aux, n = m->par[3], mm = m->par[4];
+    set_common(m->par, a, n, mm);
+    a[A_K] = mm * n;
+    psik__recip2(1.0, mm, &a[A_IM_HI], &a[A_IM_LO]);
+    a[A_L] = m->par[6];
+    a[A_KEXACT] = 0.0;
+    a[A_FA] = mm + a[A_IN_HI];
+    a[A_FB] = (n - 1.0) / n;
+    a[A_BAB] = psik__beta(a[A_FA], a[A_FB]);
+}
+
+/* Kr = Se^L I_z(a,b)^2 with z = 1/(1+x), 1 - z = y and
+ * z^a y^b = Se y / p exactly, so the front factor needs no pow at all;
+ * dI/dh = n alpha z^a y^b / (p B(a,b)). */
+static void vg_free_m_fill(const double *a, const vg_pt *q, psik_point *out)
+{
+    double front = q->se * q->y / (q->p * a[A_BAB]), comp;
+    double I = psik__ibeta(a[A_FA], a[A_FB], q->r, q->y, front, &comp);
+    double dI = a[A_N] * a[A_ALPHA] * front / q->p;
+    out->se = q->se;
+    out->dse = q->dls * q->se;
+    if (q->wet && q->p < DBL_MIN)
+        dI = a[A_N] * a[A_ALPHA] * pow(q->p, a[A_N] - 2.0) * q->r * q->se / a[A_BAB];
+    mualem_out(q->se, a[A_L], I, q->dls, dI, out);
+}
+
+static void vg_free_m_point(const psik_model *m, double s, psik_point *out)
+{
+    vg_pt q;
+    vg_from_s(m->aux, s, &q);
+    vg_free_m_fill(m->aux, &q, out);
+}
+
+static void vg_free_m_point_se(const psik_model *m, double se, psik_point *out)
+{
+    vg_pt q;
+    vg_from_se(m->aux, se, &q);
+    vg_free_m_fill(m->aux, &q, out);
+}
+
+static double vg_free_m_kr(const psik_model *m, double s)
+{
+    psik_point out;
+    vg_free_m_point(m, s, &out);
+    return out.kr;
+}
+
+const psik_family psik__fam_vg_free_m = {
+    PSIK_VG_FREE_M, "vg_free_m",
+    "van Genuchten (1980) retention with free m, Mualem (1976) conductivity "
+    "through the incomplete beta function",
+    7, vg_free_m_param, 5,
+    vg_free_m_check, vg_free_m_prepare, vg_free_m_point, vg_se, vg_free_m_kr,
+    vg_free_m_point_se, vg_suction,
+};
+
+/* ------------------------------------------------------------------- vgb */
+
+static const psik_param_info vgb_param[] = {
+    {"theta_r", 0.0, 0.5},
+    {"theta_s", 0.05, 1.0},
+    {"alpha", 1e-5, 100.0},
+    {"n", 2.001, 20.0},
+    {"ks", 1e-6, 1e5},
+};
+
+static psik_status vgb_check(const double *par, char *msg, size_t cap)
+{
+    return check_alpha_n(par, 2.0, " for the Burdine form (m = 1 - 2/n must be positive)",
+                         msg, cap);
+}
+
+static void vgb_prepare(psik_model *m)
+{
+    double *a = m->aux, n = m->par[3];
+    set_common(m->par, a, n, (n - 2.0) / n);   /* n - 2 is exact for n >= 2 */
+    a[A_K] = n - 2.0;
+    psik__recip2(n, n - 2.0, &a[A_IM_HI], &a[A_IM_LO]);
+    a[A_KEXACT] = 1.0;
+}
+
+/* Burdine: Kr = Se^2 g, dKr/dh = Se^2 (2 g dlnSe/dh + dg/dh). */
+static void vgb_fill(const vg_pt *q, psik_point *out)
+{
+    double se2 = q->se * q->se;
+    out->se = q->se;
+    out->dse = q->dls * q->se;
+    out->kr = se2 * q->g;
+    out->dkr = se2 * (2.0 * q->g * q->dls + q->dg);
+}
+
+static void vgb_point(const psik_model *m, double s, psik_point *out)
+{
+    vg_pt q;
+    vg_from_s(m->aux, s, &q);
+    vgb_fill(&q, out);
+}
+
+static void vgb_point_se(const psik_model *m, double se, psik_point *out)
+{
+    vg_pt q;
+    vg_from_se(m->aux, se, &q);
+    vgb_fill(&q, out);
+}
+
+static double vgb_kr(const psik_model *m, double s)
+{
+    psik_point out;
+    vgb_point(m, s, &out);
+    return out.kr;
+}
+
+const psik_family psik__fam_vgb = {
+    PSIK_VGB, "vgb",
+    "van Genuchten (1980) retention with Burdine (1953) conductivity, m = 1 - 2/n",
+    5, vgb_param, 4,
+    vgb_check, vgb_prepare, vgb_point, vg_se, vgb_kr, vgb_point_se, vg_suction,
+};
