@@ -299,10 +299,19 @@ static double vg_suction(const psik_model *m, double se)
 }
 
 const psik_family psik__fam_vgm = {
-    PSIK_VGM, "vgm",
-    "van Genuchten (1980) retention with Mualem (1976) conductivity, m = 1 - 1/n",
-    6, vgm_param, 4,
-    vgm_check, vgm_prepare, vgm_point, vg_se, vgm_kr, vgm_point_se, vg_suction,
+    .kind = PSIK_VGM,
+    .name = "vgm",
+    .title = "van Genuchten (1980) retention with Mualem (1976) conductivity, m = 1 - 1/n",
+    .npar = 6,
+    .param = vgm_param,
+    .ks_index = 4,
+    .check = vgm_check,
+    .prepare = vgm_prepare,
+    .point = vgm_point,
+    .se = vg_se,
+    .kr = vgm_kr,
+    .point_se = vgm_point_se,
+    .suction = vg_suction,
 };
 
 /* ---------------------------------------------------------------- vgm_ae */
@@ -393,12 +402,19 @@ static double vgm_ae_suction(const psik_model *m, double se)
 }
 
 const psik_family psik__fam_vgm_ae = {
-    PSIK_VGM_AE, "vgm_ae",
-    "van Genuchten-Mualem with air-entry head h_e "
-    "(Vogel, van Genuchten & Cislerova 2001; Ippisch, Vogel & Bastian 2006)",
-    7, vgm_ae_param, 4,
-    vgm_ae_check, vgm_ae_prepare, vgm_ae_point, vgm_ae_se, vgm_ae_kr,
-    vgm_ae_point_se, vgm_ae_suction,
+    .kind = PSIK_VGM_AE,
+    .name = "vgm_ae",
+    .title = "van Genuchten-Mualem with air-entry head h_e " "(Vogel, van Genuchten & Cislerova 2001; Ippisch, Vogel & Bastian 2006)",
+    .npar = 7,
+    .param = vgm_ae_param,
+    .ks_index = 4,
+    .check = vgm_ae_check,
+    .prepare = vgm_ae_prepare,
+    .point = vgm_ae_point,
+    .se = vgm_ae_se,
+    .kr = vgm_ae_kr,
+    .point_se = vgm_ae_point_se,
+    .suction = vgm_ae_suction,
 };
 
 /* ------------------------------------------------------------- vg_free_m */
@@ -476,12 +492,19 @@ static double vg_free_m_kr(const psik_model *m, double s)
 }
 
 const psik_family psik__fam_vg_free_m = {
-    PSIK_VG_FREE_M, "vg_free_m",
-    "van Genuchten (1980) retention with free m, Mualem (1976) conductivity "
-    "through the incomplete beta function",
-    7, vg_free_m_param, 5,
-    vg_free_m_check, vg_free_m_prepare, vg_free_m_point, vg_se, vg_free_m_kr,
-    vg_free_m_point_se, vg_suction,
+    .kind = PSIK_VG_FREE_M,
+    .name = "vg_free_m",
+    .title = "van Genuchten (1980) retention with free m, Mualem (1976) conductivity " "through the incomplete beta function",
+    .npar = 7,
+    .param = vg_free_m_param,
+    .ks_index = 5,
+    .check = vg_free_m_check,
+    .prepare = vg_free_m_prepare,
+    .point = vg_free_m_point,
+    .se = vg_se,
+    .kr = vg_free_m_kr,
+    .point_se = vg_free_m_point_se,
+    .suction = vg_suction,
 };
 
 /* ------------------------------------------------------------------- vgb */
@@ -541,8 +564,17 @@ static double vgb_kr(const psik_model *m, double s)
 }
 
 const psik_family psik__fam_vgb = {
-    PSIK_VGB, "vgb",
-    "van Genuchten (1980) retention with Burdine (1953) conductivity, m = 1 - 2/n",
-    5, vgb_param, 4,
-    vgb_check, vgb_prepare, vgb_point, vg_se, vgb_kr, vgb_point_se, vg_suction,
+    .kind = PSIK_VGB,
+    .name = "vgb",
+    .title = "van Genuchten (1980) retention with Burdine (1953) conductivity, m = 1 - 2/n",
+    .npar = 5,
+    .param = vgb_param,
+    .ks_index = 4,
+    .check = vgb_check,
+    .prepare = vgb_prepare,
+    .point = vgb_point,
+    .se = vg_se,
+    .kr = vgb_kr,
+    .point_se = vgb_point_se,
+    .suction = vg_suction,
 };
