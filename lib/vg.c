@@ -46,6 +46,9 @@
 #define A_FA    10  /* vg_free_m: a = m + 1/n */
 #define A_FB    11  /* vg_free_m: b = 1 - 1/n */
 #define A_BAB   12  /* vg_free_m: B(a, b) */
+#define A_K_LO  13  /* vg_free_m: m n - fl(m n) */
+#define A_IK_HI 14  /* 1/k = 1/(m n) */
+#define A_IK_LO 15
 
 typedef struct vg_pt {
     double p;     /* alpha s */
@@ -70,7 +73,13 @@ static void vg_finish(const double *a, vg_pt *q)
             q->ym = pow(q->p, k) * q->se;           /* y^m = p^(mn) Se */
         else
             q->ym = pow(q->y, mm);
-        q->g = q->ym < 0.5 ? 1.0 - q->ym : -expm1(mm * log(q->y));
+        if (q->ym < 0.5) {
+            q->g = 1.0 - q->ym;
+        } else {
+            /* ln y; when x has underflowed, from ln p (y = x / (1 + x)) */
+            double lny = q->y >= DBL_MIN ? log(q->y) : n * log(q->p) - log1p(q->x);
+            q->g = -expm1(mm * lny);
+        }
         q->dls = k * alpha * pow(q->p, n - 1.0) * q->r;
         if (kexact)
             q->dg = k * alpha * pow(q->p, k - 1.0) * q->se * q->r;
@@ -108,10 +117,8 @@ static void vg_from_s(const double *a, double s, vg_pt *q)
         q->r = u * q->y;
         if (a[A_KEXACT] != 0.0)
             q->se = pow(p, -k) * exp(-mm * b);
-        else if (q->r > DBL_MIN)
-            q->se = pow(q->r, mm);
-        else
-            q->se = exp(-mm * (n * log(p) + b));
+        else   /* the same with k = m n carried in two doubles */
+            q->se = psik__pow2(p, -k, -a[A_K_LO]) * exp(-mm * b);
     }
     vg_finish(a, q);
 }
@@ -140,21 +147,18 @@ static void vg_from_se(const double *a, double S, vg_pt *q)
             q->x = x;
             q->u = 1.0 / x;
             q->p = psik__pow2(x, in_hi, in_lo);
-        } else if (isfinite(X)) {
-            q->x = X;                      /* 1 + x = x in double */
-            q->u = 1.0 / X;
-            q->p = psik__pow2(X, in_hi, in_lo);
         } else {
-            /* Se^(1/m) below the smallest double: work in logs. */
-            double lx = t * im_hi;
-            q->x = INFINITY;
-            q->u = exp(-lx);
-            q->p = exp(lx * in_hi);
+            /* x >= 2^52: p = Se^(-1/k) (1 + u)^(-1/n) with (1 + u)^(-1/n)
+             * = 1 - u/n to rounding; no power of a huge intermediate. */
+            double p = psik__pow2(S, -a[A_IK_HI], -a[A_IK_LO]);
+            double u = isfinite(X) ? 1.0 / X : pow(p, -n);
+            q->p = p - p * (u / n);
+            q->u = u;
+            q->x = 1.0 / u;
         }
         q->y = 1.0 / (1.0 + q->u);
         q->r = q->u * q->y;
     }
-    (void)n;
     vg_finish(a, q);
 }
 
@@ -216,15 +220,16 @@ static psik_status check_alpha_n(const double *par, double nmin, const char *why
     return PSIK_OK;
 }
 
-/* l >= -2/m keeps dKr/dh >= 0 for m = 1 - 1/n: with y in (0,1),
+/* l > -2/m keeps dKr/dh >= 0 for m = 1 - 1/n: with y in (0,1),
  * L g y + 2 y^m (1-y) >= 0 iff -L <= 2 y^(m-1)(1-y)/(1-y^m), whose
- * infimum (y -> 1) is 2/m by the mean value theorem. */
+ * infimum (y -> 1) is 2/m by the mean value theorem. At l = -2/m exactly
+ * Kr tends to m^2, not 0, in dry soil, so the bound is strict. */
 static psik_status check_l(double L, double lmin, char *msg, size_t cap)
 {
-    if (!(L >= lmin))
+    if (!(L > lmin))
         return psik__fail(msg, cap, PSIK_EDOMAIN,
-                          "l must be at least %.6g for this n (otherwise K would "
-                          "decrease as the soil wets) (got %g)", lmin, L);
+                          "l must be greater than %.6g for this n (otherwise K would "
+                          "not fall to 0 as the soil dries) (got %g)", lmin, L);
     return PSIK_OK;
 }
 
@@ -242,6 +247,7 @@ static void vgm_prepare(psik_model *m)
     set_common(m->par, a, n, (n - 1.0) / n);   /* n - 1 is exact for n >= 1 */
     a[A_K] = n - 1.0;
     psik__recip2(n, n - 1.0, &a[A_IM_HI], &a[A_IM_LO]);
+    psik__recip2(1.0, n - 1.0, &a[A_IK_HI], &a[A_IK_LO]);
     a[A_L] = m->par[5];
     a[A_KEXACT] = 1.0;
 }
@@ -429,7 +435,7 @@ static const psik_param_info vg_free_m_param[] = {
     {"l", -5.0, 10.0},
 };
 
-/* l >= -(2 + 2/(m n)) keeps dKr/dh >= 0: d ln I_z(a,b)/d ln z >= a because
+/* l > -(2 + 2/(m n)) keeps dKr/dh >= 0 (and Kr -> 0 when dry): d ln I_z(a,b)/d ln z >= a because
  * (1-t)^(b-1) increases in t for b < 1, and d ln z / d ln Se = 1/m. */
 static psik_status vg_free_m_check(const double *par, char *msg, size_t cap)
 {
@@ -448,6 +454,12 @@ static void vg_free_m_prepare(psik_model *m)
     set_common(m->par, a, n, mm);
     a[A_K] = mm * n;
     psik__recip2(1.0, mm, &a[A_IM_HI], &a[A_IM_LO]);
+    {   /* 1/k with k = m n carried as k + dk */
+        double dk = fma(mm, n, -a[A_K]);
+        a[A_K_LO] = dk;
+        psik__recip2(1.0, a[A_K], &a[A_IK_HI], &a[A_IK_LO]);
+        a[A_IK_LO] -= a[A_IK_HI] * (dk / a[A_K]);
+    }
     a[A_L] = m->par[6];
     a[A_KEXACT] = 0.0;
     a[A_FA] = mm + a[A_IN_HI];
@@ -529,6 +541,7 @@ static void vgb_prepare(psik_model *m)
     set_common(m->par, a, n, (n - 2.0) / n);   /* n - 2 is exact for n >= 2 */
     a[A_K] = n - 2.0;
     psik__recip2(n, n - 2.0, &a[A_IM_HI], &a[A_IM_LO]);
+    psik__recip2(1.0, n - 2.0, &a[A_IK_HI], &a[A_IK_LO]);
     a[A_KEXACT] = 1.0;
 }
 
