@@ -79,7 +79,7 @@ deps:
 	@sh tests/deps.sh
 
 .PHONY: test-build
-test-build: $(T_BIN) $(T_ASAN) $(B)/tests/cxx_header $(B)/tests/c11_header
+test-build: $(T_BIN) $(T_ASAN) $(B)/tests/cxx_header $(B)/tests/c11_header $(SINGLE)
 
 $(B)/tests/%: tests/unit/%.c $(T_HELP) $(LIB_A) tests/unit/*.h
 	@mkdir -p $(dir $@)
@@ -97,6 +97,15 @@ $(B)/tests/cxx_header: tests/header/header_cxx.cpp include/psik.h $(LIB_A)
 $(B)/tests/c11_header: tests/header/header_c11.c include/psik.h $(LIB_A)
 	@mkdir -p $(dir $@)
 	$(CC) -std=c11 -Wall -Wextra -Wpedantic -Werror -Iinclude -o $@ $< $(LIB_A) $(LDLIBS)
+
+# ---------------------------------------------------------------- embedding
+# The single-header form, generated from the same sources (tools/mksingle.py).
+SINGLE   := $(B)/include/psik_single.h
+.PHONY: single
+single: $(SINGLE)
+
+$(SINGLE): tools/mksingle.py include/psik.h $(wildcard lib/*.h) $(LIB_SRC)
+	/usr/bin/python3 tools/mksingle.py -o $@
 
 # ---------------------------------------------------------------- demo, docs
 demo: $(B)/bin/vg_demo

@@ -11,13 +11,16 @@
 
 #include "psik.h"
 
-/* Internal helpers are static in the single-header build, hidden otherwise. */
+/* Internal helpers are static in the single-header build (which defines
+ * PSIK_HIDDEN itself, see tools/mksingle.py), hidden otherwise. */
+#ifndef PSIK_HIDDEN
 #if defined(PSIK_STATIC) || defined(PSIK_SINGLE)
 #  define PSIK_HIDDEN static
 #elif defined(__GNUC__)
 #  define PSIK_HIDDEN __attribute__((visibility("hidden")))
 #else
 #  define PSIK_HIDDEN
+#endif
 #endif
 
 /* One parameter of a kind. lo/hi: the plausible range psik_param_range()
