@@ -1,0 +1,334 @@
+"""psik: unsaturated-soil hydraulic functions (ctypes binding of libpsik).
+
+    >>> import psik
+    >>> m = psik.Model("vgm", theta_r=0.078, theta_s=0.43, alpha=0.036, n=1.56, ks=24.96)
+    >>> m.theta(-100.0)            # a float gives a float
+    >>> m.k([-1.0, -10.0])         # a sequence gives a list
+    >>> m.capacity(numpy_array)    # an array gives an array (batch call, no copy
+    ...                            # when it is C-contiguous float64)
+
+Keywords are the parameter names of the kind (psik.param_names(kind)); l
+defaults to 0.5 (Mualem 1976) where the kind has l. Invalid parameters raise
+ValueError with the library's message. Units are the caller's, as in C.
+NumPy is optional. The library is found through PSIK_LIBRARY, then the
+source tree's build/lib, then the system loader (see psik._lib).
+"""
+import ctypes
+from collections import namedtuple
+
+from . import _lib
+from ._lib import ABI_VERSION, MAX_PARAMS, MODEL_SIZE, STATE_SIZE, PsikModel, PsikState
+
+try:  # NumPy is optional
+    import numpy as _np
+except ImportError:  # pragma: no cover - exercised by the no-NumPy test run
+    _np = None
+
+__all__ = ["Model", "State", "kinds", "kind_title", "param_names", "param_range",
+           "version", "strerror", "library_path", "OK", "EINVAL", "EDOMAIN", "ENOCONV",
+           "EDATA", "ENOMEM", "EABI"]
+
+_lib.check_layout()
+_c = _lib.load()
+
+# Status codes (psik_status).
+OK, EINVAL, EDOMAIN, ENOCONV, EDATA, ENOMEM, EABI = range(7)
+
+#: All properties at one head, as psik_eval gives them.
+State = namedtuple("State", "se theta kr k capacity dk_dh")
+
+_MSG_CAP = 512
+
+
+def _s(b):
+    return None if b is None else b.decode("utf-8", "replace")
+
+
+def version():
+    """The library's version string."""
+    return _s(_c.psik_version())
+
+
+def library_path():
+    """The file or name the shared library was loaded from."""
+    return _c.psik_path
+
+
+def strerror(status):
+    """The library's sentence for a status code."""
+    return _s(_c.psik_strerror(int(status)))
+
+
+def _all_kinds():
+    out = {}
+    k = 1
+    while k < 64:
+        name = _c.psik_kind_name(k)
+        if name is not None:
+            out[_s(name)] = k
+        k += 1
+    return out
+
+
+_KINDS = _all_kinds()
+for _name, _k in _KINDS.items():   # VGM = 1, BCM = 5, ... (the C names without PSIK_)
+    globals()[_name.upper()] = _k
+    __all__.append(_name.upper())
+
+
+def kinds():
+    """Short names of every kind the library has, in kind order."""
+    return sorted(_KINDS, key=_KINDS.get)
+
+
+def _kind(kind):
+    if isinstance(kind, str):
+        k = _c.psik_kind_from_name(kind.encode())
+        if k == 0:
+            raise ValueError("unknown model kind %r; the kinds are: %s" % (kind, " ".join(kinds())))
+        return k
+    k = int(kind)
+    if _c.psik_kind_name(k) is None:
+        raise ValueError("unknown model kind %d; the kinds are: %s" % (k, " ".join(kinds())))
+    return k
+
+
+def kind_title(kind):
+    """One line naming the model and its published reference."""
+    return _s(_c.psik_kind_title(_kind(kind)))
+
+
+def param_names(kind):
+    """Parameter names of a kind, in the order of the C parameter vector."""
+    k = _kind(kind)
+    return [_s(_c.psik_param_name(k, i)) for i in range(_c.psik_param_count(k))]
+
+
+def param_range(kind, param):
+    """(lo, hi): the plausible range of a parameter (name or index)."""
+    k = _kind(kind)
+    i = param if isinstance(param, int) else _c.psik_param_index(k, str(param).encode())
+    lo, hi = ctypes.c_double(), ctypes.c_double()
+    if _c.psik_param_range(k, i, ctypes.byref(lo), ctypes.byref(hi)) != OK:
+        raise ValueError("%s has no parameter %r" % (_s(_c.psik_kind_name(k)), param))
+    return lo.value, hi.value
+
+
+def _is_array(x):
+    return _np is not None and isinstance(x, _np.ndarray)
+
+
+def _as_c_array(x):
+    """A C-contiguous float64 view of x (no copy when it already is one)."""
+    if x.dtype == _np.float64 and x.flags["C_CONTIGUOUS"]:
+        return x
+    return _np.ascontiguousarray(x, dtype=_np.float64)
+
+
+def _ptr(a):
+    return a.ctypes.data_as(_lib.c_double_p)
+
+
+# The outputs psik_eval_batch computes, by position after h.
+_BATCH = {"theta": 0, "k": 1, "capacity": 2, "dk_dh": 3}
+
+
+class Model(object):
+    """A hydraulic model: one kind and its parameters (a copy of C psik_model).
+
+    Model(kind, params=None, **keywords): kind is a short name ("vgm") or a
+    kind number; parameters come as keywords named like psik.param_names(kind),
+    or as a sequence in that order, or as a dict. l defaults to 0.5.
+    """
+
+    __slots__ = ("_m", "_kind", "_names")
+
+    def __init__(self, kind, params=None, **keywords):
+        k = _kind(kind)
+        names = param_names(k)
+        kname = _s(_c.psik_kind_name(k))
+        given = {}
+        if params is not None:
+            if isinstance(params, dict):
+                given.update(params)
+            else:
+                vals = list(params)
+                if len(vals) != len(names):
+                    raise ValueError("%s takes %d parameters (%s), got %d"
+                                     % (kname, len(names), " ".join(names), len(vals)))
+                given.update(zip(names, vals))
+        for key, val in keywords.items():
+            if key in given:
+                raise ValueError("parameter %s given twice" % key)
+            given[key] = val
+        unknown = [key for key in given if key not in names]
+        if unknown:
+            raise ValueError("%s has no parameter %s; its parameters are: %s"
+                             % (kname, ", ".join(sorted(unknown)), " ".join(names)))
+        if "l" in names and "l" not in given:
+            given["l"] = 0.5
+        missing = [nm for nm in names if nm not in given]
+        if missing:
+            raise ValueError("%s needs %s (its parameters are: %s)"
+                             % (kname, ", ".join(missing), " ".join(names)))
+        par = (ctypes.c_double * MAX_PARAMS)()
+        for i, nm in enumerate(names):
+            try:
+                par[i] = float(given[nm])
+            except (TypeError, ValueError):
+                raise ValueError("%s must be a number (got %r)" % (nm, given[nm]))
+        msg = ctypes.create_string_buffer(_MSG_CAP)
+        st = _c.psik_check(k, par, msg, _MSG_CAP)
+        if st != OK:
+            raise ValueError(_s(msg.value) or strerror(st))
+        self._m = PsikModel()
+        st = _c.psik_init_abi(ctypes.byref(self._m), k, par, ABI_VERSION,
+                              ctypes.sizeof(PsikModel))
+        if st == EABI:
+            raise RuntimeError("psik: %s (library %s)" % (strerror(st), library_path()))
+        if st != OK:
+            raise ValueError(strerror(st))
+        self._kind = k
+        self._names = names
+
+    # -- description
+    @property
+    def kind(self):
+        """The kind number (psik_kind)."""
+        return self._kind
+
+    @property
+    def kind_name(self):
+        """The kind's short name, e.g. "vgm"."""
+        return _s(_c.psik_kind_name(self._kind))
+
+    @property
+    def params(self):
+        """The parameters as a dict (name to value), in kind order."""
+        return dict((nm, self._m.par[i]) for i, nm in enumerate(self._names))
+
+    @property
+    def c_model(self):
+        """The underlying ctypes psik_model (for passing to other C code)."""
+        return self._m
+
+    def __repr__(self):
+        return "psik.Model(%r, %s)" % (self.kind_name, ", ".join(
+            "%s=%r" % (nm, self._m.par[i]) for i, nm in enumerate(self._names)))
+
+    def __reduce__(self):
+        return (Model, (self.kind_name, self.params))
+
+    def __eq__(self, other):
+        return isinstance(other, Model) and self._kind == other._kind and \
+            self.params == other.params
+
+    def __ne__(self, other):
+        return not self == other
+
+    __hash__ = None
+
+    # -- evaluation
+    def _call(self, cname, x):
+        f = getattr(_c, cname)
+        m = ctypes.byref(self._m)
+        if _is_array(x):
+            a = _as_c_array(x)
+            out = _np.empty(a.shape, dtype=_np.float64)
+            pos = _BATCH.get(cname[5:])
+            if pos is not None:
+                outs = [None, None, None, None]
+                outs[pos] = _ptr(out)
+                _c.psik_eval_batch(m, a.size, _ptr(a), *outs)
+            else:
+                flat_in, flat_out = a.reshape(-1), out.reshape(-1)
+                for i in range(a.size):
+                    flat_out[i] = f(m, flat_in[i])
+            return out
+        if isinstance(x, (str, bytes)):
+            raise TypeError("psik: expected a number, a sequence of numbers or an array, got %r"
+                            % (x,))
+        try:
+            v = float(x)
+        except TypeError:
+            return self._call_list(cname, f, m, x)
+        return f(m, v)
+
+    def _call_list(self, cname, f, m, seq):
+        vals = [float(v) for v in seq]
+        n = len(vals)
+        pos = _BATCH.get(cname[5:])
+        if pos is not None and n > 0:
+            h = (ctypes.c_double * n)(*vals)
+            out = (ctypes.c_double * n)()
+            outs = [None, None, None, None]
+            outs[pos] = out
+            _c.psik_eval_batch(m, n, h, *outs)
+            return list(out)
+        return [f(m, v) for v in vals]
+
+    def se(self, h):
+        """Effective saturation Se(h) in [0, 1]."""
+        return self._call("psik_se", h)
+
+    def theta(self, h):
+        """Water content theta(h)."""
+        return self._call("psik_theta", h)
+
+    def head(self, theta):
+        """Pressure head at water content theta (inverse of theta())."""
+        return self._call("psik_head", theta)
+
+    def head_se(self, se):
+        """Pressure head at effective saturation se (inverse of se())."""
+        return self._call("psik_head_se", se)
+
+    def kr(self, h):
+        """Relative conductivity Kr(h) in [0, 1]."""
+        return self._call("psik_kr", h)
+
+    def k(self, h):
+        """Conductivity K(h) = ks Kr(h)."""
+        return self._call("psik_k", h)
+
+    def k_theta(self, theta):
+        """Conductivity at water content theta."""
+        return self._call("psik_k_theta", theta)
+
+    def capacity(self, h):
+        """Water capacity C(h) = d theta / d h."""
+        return self._call("psik_capacity", h)
+
+    def dk_dh(self, h):
+        """d K / d h."""
+        return self._call("psik_dk_dh", h)
+
+    def diffusivity(self, theta):
+        """Diffusivity D(theta) = K / C."""
+        return self._call("psik_diffusivity", theta)
+
+    def eval(self, h):
+        """All properties at once: a State for a float, a list of States for a
+        sequence, a State of arrays for an array."""
+        m = ctypes.byref(self._m)
+        st = PsikState()
+        if _is_array(h):
+            a = _as_c_array(h)
+            outs = [_np.empty(a.shape, dtype=_np.float64) for _ in range(6)]
+            flat = [o.reshape(-1) for o in outs]
+            fa = a.reshape(-1)
+            for i in range(a.size):
+                _c.psik_eval(m, fa[i], ctypes.byref(st))
+                flat[0][i], flat[1][i], flat[2][i] = st.se, st.theta, st.kr
+                flat[3][i], flat[4][i], flat[5][i] = st.k, st.capacity, st.dk_dh
+            return State(*outs)
+        try:
+            v = float(h)
+        except TypeError:
+            res = []
+            for x in h:
+                _c.psik_eval(m, float(x), ctypes.byref(st))
+                res.append(State(st.se, st.theta, st.kr, st.k, st.capacity, st.dk_dh))
+            return res
+        _c.psik_eval(m, v, ctypes.byref(st))
+        return State(st.se, st.theta, st.kr, st.k, st.capacity, st.dk_dh)

@@ -1,0 +1,316 @@
+"""Tests of the psik Python binding (unittest; run by tests/suites/python.sh
+once with NumPy and once with NumPy hidden).
+
+Sources of expected values:
+  * layout numbers: include/psik.h ABI 1 (the same as tests/unit/test_abi.c);
+  * van Genuchten-Mualem closed forms evaluated with mpmath at 50 digits
+    (Debian python3-mpmath), derivatives by mpmath.diff;
+  * messages: the C library's psik_check, called directly through ctypes;
+  * everything else: exact agreement between the float, list and array paths.
+"""
+import ctypes
+import math
+import os
+import pickle
+import subprocess
+import sys
+import unittest
+
+import psik
+from psik import _lib
+
+try:
+    import numpy as np
+except ImportError:
+    np = None
+
+try:
+    import mpmath
+except ImportError:
+    mpmath = None
+
+NO_NUMPY = os.environ.get("PSIK_TEST_NO_NUMPY") == "1"
+
+# loam, Carsel & Parrish (1988) class mean (from memory), cm and cm/day
+LOAM = dict(theta_r=0.078, theta_s=0.43, alpha=0.036, n=1.56, ks=24.96)
+HEADS = [-1e-4, -0.1, -1.0, -10.0, -33.0, -100.0, -1000.0, -15000.0, -1e6]
+WORST = {}
+
+
+def note(what, err):
+    WORST[what] = max(WORST.get(what, 0.0), err)
+
+
+def rel(a, b):
+    if a == b:
+        return 0.0
+    return abs(a - b) / abs(b)
+
+
+def quarter_point(kind):
+    """A parameter dict a quarter of the way through each plausible range."""
+    out = {}
+    for name in psik.param_names(kind):
+        lo, hi = psik.param_range(kind, name)
+        out[name] = lo + 0.25 * (hi - lo)
+    return out
+
+
+class Layout(unittest.TestCase):
+    def test_sizes_and_offsets(self):
+        M, S = _lib.PsikModel, _lib.PsikState
+        self.assertEqual(ctypes.sizeof(M), 304)
+        self.assertEqual(ctypes.sizeof(S), 48)
+        want = dict(kind=0, npar=4, abi_size=8, abi_version=12, par=16, theta_r=144,
+                    theta_s=152, ks=160, h_sat=168, aux=176)
+        for f, off in want.items():
+            self.assertEqual(getattr(M, f).offset, off, f)
+        for i, f in enumerate("se theta kr k capacity dk_dh".split()):
+            self.assertEqual(getattr(S, f).offset, 8 * i, f)
+        self.assertEqual(psik.MAX_PARAMS, 16)
+
+    def test_library_records_layout(self):
+        m = psik.Model("vgm", **LOAM)
+        self.assertEqual(m.c_model.abi_size, 304)
+        self.assertEqual(m.c_model.abi_version, psik.ABI_VERSION)
+
+    def test_abi_mismatch(self):
+        m = _lib.PsikModel()
+        ctypes.memset(ctypes.byref(m), 0xA5, ctypes.sizeof(m))
+        par = (ctypes.c_double * 16)(0.078, 0.43, 0.036, 1.56, 24.96, 0.5)
+        st = psik._c.psik_init_abi(ctypes.byref(m), psik.VGM, par, 1, 296)
+        self.assertEqual(st, psik.EABI)
+        self.assertEqual(bytes(m), b"\xa5" * 304)
+
+
+class Construction(unittest.TestCase):
+    def test_keywords_and_default_l(self):
+        m = psik.Model("vgm", **LOAM)
+        self.assertEqual(m.kind, psik.VGM)
+        self.assertEqual(m.kind_name, "vgm")
+        self.assertEqual(m.params["l"], 0.5)
+        self.assertEqual(list(m.params), psik.param_names("vgm"))
+        m2 = psik.Model("vgm", [0.078, 0.43, 0.036, 1.56, 24.96, 0.5])
+        self.assertEqual(m, m2)
+        m3 = psik.Model(psik.VGM, dict(LOAM, l=0.5))
+        self.assertEqual(m, m3)
+        self.assertEqual(eval(repr(m), {"psik": psik}), m)
+        self.assertEqual(pickle.loads(pickle.dumps(m)), m)
+
+    def test_kinds_are_the_library_table(self):
+        names = psik.kinds()
+        self.assertIn("vgm", names)
+        for k in names:
+            kind = getattr(psik, k.upper())
+            self.assertEqual(psik._s(psik._c.psik_kind_name(kind)), k)
+            self.assertEqual(len(psik.param_names(k)), psik._c.psik_param_count(kind))
+            self.assertTrue(psik.kind_title(k))
+
+    def test_invalid_parameter_carries_check_message(self):
+        bad = dict(LOAM, n=0.9)
+        par = (ctypes.c_double * 16)(0.078, 0.43, 0.036, 0.9, 24.96, 0.5)
+        buf = ctypes.create_string_buffer(512)
+        self.assertEqual(psik._c.psik_check(psik.VGM, par, buf, 512), psik.EDOMAIN)
+        with self.assertRaises(ValueError) as cm:
+            psik.Model("vgm", **bad)
+        self.assertEqual(str(cm.exception), buf.value.decode())
+        self.assertIn("n must be greater than 1", str(cm.exception))
+        with self.assertRaises(ValueError) as cm:
+            psik.Model("vgm", **dict(LOAM, theta_r=0.5))
+        self.assertIn("theta_r must be less than theta_s", str(cm.exception))
+
+    def test_call_errors(self):
+        with self.assertRaisesRegex(ValueError, "unknown model kind 'vgx'"):
+            psik.Model("vgx", **LOAM)
+        with self.assertRaisesRegex(ValueError, "needs alpha"):
+            psik.Model("vgm", theta_r=0.078, theta_s=0.43, n=1.56, ks=24.96)
+        with self.assertRaisesRegex(ValueError, "has no parameter alfa"):
+            psik.Model("vgm", alfa=0.036, **dict((k, v) for k, v in LOAM.items() if k != "alpha"))
+        with self.assertRaisesRegex(ValueError, "takes 6 parameters"):
+            psik.Model("vgm", [0.078, 0.43, 0.036, 1.56, 24.96])
+        with self.assertRaisesRegex(ValueError, "ks must be a number"):
+            psik.Model("vgm", **dict(LOAM, ks="fast"))
+        with self.assertRaisesRegex(ValueError, "finite"):
+            psik.Model("vgm", **dict(LOAM, alpha=float("nan")))
+        with self.assertRaises(TypeError):
+            psik.Model("vgm", **LOAM).theta("wet")
+
+
+@unittest.skipIf(mpmath is None, "mpmath missing")
+class AgainstMpmath(unittest.TestCase):
+    """van Genuchten (1980) / Mualem (1976) closed forms at 50 digits."""
+
+    @classmethod
+    def setUpClass(cls):
+        mp = mpmath.mp
+        mp.dps = 50
+        tr, ts, a, n, ks = (mpmath.mpf(repr(LOAM[k])) for k in
+                            ("theta_r", "theta_s", "alpha", "n", "ks"))
+        mm = 1 - 1 / n
+
+        def se(h):
+            return (1 + (a * -h) ** n) ** -mm
+
+        def kk(h):
+            s = se(h)
+            return ks * mpmath.sqrt(s) * (1 - (1 - s ** (1 / mm)) ** mm) ** 2
+
+        cls.f = dict(se=se, theta=lambda h: tr + (ts - tr) * se(h), k=kk,
+                     kr=lambda h: kk(h) / ks,
+                     capacity=lambda h: mpmath.diff(lambda x: tr + (ts - tr) * se(x), h),
+                     dk_dh=lambda h: mpmath.diff(kk, h))
+
+    def test_values(self):
+        m = psik.Model("vgm", **LOAM)
+        worst = 0.0
+        for name, ref in self.f.items():
+            for h in HEADS:
+                want = float(ref(mpmath.mpf(h)))
+                got = getattr(m, name)(h)
+                e = rel(got, want)
+                note("mpmath " + name, e)
+                worst = max(worst, e)
+                self.assertLess(e, 1e-12, "%s(%g): %r vs %r" % (name, h, got, want))
+        print("\n# largest relative error vs mpmath (vgm loam, 6 functions x %d heads): %.3g"
+              % (len(HEADS), worst))
+
+    def test_inverse_round_trip(self):
+        m = psik.Model("vgm", **LOAM)
+        for h in HEADS:
+            e = rel(m.head(m.theta(h)), h)
+            note("head(theta(h))", e)
+            # condition of the inverse grows near saturation (common practice:
+            # compare in h only where theta is not within rounding of theta_s)
+            if h <= -0.1:
+                self.assertLess(e, 1e-9, h)
+
+
+class Semantics(unittest.TestCase):
+    def test_saturated_and_nan(self):
+        m = psik.Model("vgm", **LOAM)
+        self.assertEqual(m.theta(0.0), 0.43)
+        self.assertEqual(m.k(5.0), 24.96)
+        self.assertEqual(m.capacity(0.0), 0.0)
+        self.assertEqual(m.dk_dh(0.0), 0.0)
+        self.assertEqual(m.head(0.43), 0.0)
+        self.assertEqual(m.head(0.078), -math.inf)
+        self.assertTrue(math.isnan(m.theta(float("nan"))))
+        self.assertEqual(m.eval(1.0), psik.State(1.0, 0.43, 1.0, 24.96, 0.0, 0.0))
+
+    def test_float_gives_float_sequence_gives_list(self):
+        m = psik.Model("vgm", **LOAM)
+        for name in ("se", "theta", "kr", "k", "capacity", "dk_dh"):
+            f = getattr(m, name)
+            self.assertIsInstance(f(-10.0), float)
+            self.assertIsInstance(f(-10), float)
+            lst = f(HEADS)
+            self.assertIsInstance(lst, list)
+            self.assertEqual(lst, [f(h) for h in HEADS], name)
+            self.assertEqual(f(tuple(HEADS)), lst)
+            self.assertEqual(f([]), [])
+        thetas = m.theta(HEADS)
+        for name in ("head", "k_theta", "diffusivity"):
+            f = getattr(m, name)
+            self.assertEqual(f(thetas), [f(t) for t in thetas])
+        states = m.eval(HEADS)
+        self.assertEqual(len(states), len(HEADS))
+        for h, s in zip(HEADS, states):
+            self.assertEqual(s, m.eval(h))
+            self.assertEqual(s.theta, m.theta(h))   # psik_eval = single functions
+
+    def test_every_kind(self):
+        for kind in psik.kinds():
+            p = quarter_point(kind)
+            m = psik.Model(kind, **p)
+            tr, ts = p["theta_r"], p["theta_s"]
+            for h in HEADS:
+                t = m.theta(h)
+                self.assertTrue(tr <= t <= ts, (kind, h, t))
+                self.assertTrue(0.0 <= m.kr(h) <= 1.0)
+                self.assertGreaterEqual(m.capacity(h), 0.0)
+            self.assertEqual(m.k(HEADS), [m.k(h) for h in HEADS], kind)
+
+    def test_without_numpy(self):
+        if NO_NUMPY:
+            self.assertIsNone(psik._np, "NumPy should be hidden in this run")
+            with self.assertRaises(ImportError):
+                import numpy  # noqa: F401
+        m = psik.Model("vgm", **LOAM)
+        self.assertEqual(m.theta(HEADS), [m.theta(h) for h in HEADS])
+
+
+@unittest.skipIf(np is None, "NumPy hidden or missing")
+class Arrays(unittest.TestCase):
+    def test_array_gives_array(self):
+        m = psik.Model("vgm", **LOAM)
+        a = np.array(HEADS)
+        for name in ("se", "theta", "kr", "k", "capacity", "dk_dh"):
+            f = getattr(m, name)
+            out = f(a)
+            self.assertIsInstance(out, np.ndarray)
+            self.assertEqual(out.dtype, np.float64)
+            self.assertEqual(out.tolist(), [f(h) for h in HEADS], name)
+        t = m.theta(a)
+        for name in ("head", "k_theta", "diffusivity"):
+            f = getattr(m, name)
+            self.assertEqual(f(t).tolist(), [f(x) for x in t.tolist()], name)
+
+    def test_shapes_strides_dtypes(self):
+        m = psik.Model("vgm", **LOAM)
+        a2 = np.array(HEADS[:8]).reshape(2, 4)
+        out = m.k(a2)
+        self.assertEqual(out.shape, (2, 4))
+        self.assertEqual(out.ravel().tolist(), [m.k(h) for h in HEADS[:8]])
+        strided = np.array(HEADS)[::2]
+        self.assertFalse(strided.flags["C_CONTIGUOUS"])
+        self.assertEqual(m.capacity(strided).tolist(), [m.capacity(h) for h in HEADS[::2]])
+        ints = np.array([-1, -10, -100])
+        self.assertEqual(m.theta(ints).tolist(), [m.theta(float(h)) for h in (-1, -10, -100)])
+        self.assertEqual(m.theta(np.float64(-10.0)), m.theta(-10.0))
+        self.assertEqual(m.theta(np.empty(0)).shape, (0,))
+
+    def test_no_copy_for_contiguous_float64(self):
+        a = np.array(HEADS)
+        self.assertIs(psik._as_c_array(a), a)
+        self.assertIsNot(psik._as_c_array(a[::2]), a)
+        self.assertIsNot(psik._as_c_array(a.astype(np.float32)), a)
+
+    def test_eval_of_array(self):
+        m = psik.Model("vgm", **LOAM)
+        a = np.array(HEADS)
+        st = m.eval(a)
+        self.assertIsInstance(st, psik.State)
+        for i, h in enumerate(HEADS):
+            self.assertEqual(tuple(float(x[i]) for x in st), tuple(m.eval(h)))
+
+
+class Loading(unittest.TestCase):
+    def run_py(self, env_lib):
+        env = dict(os.environ)
+        env["PSIK_LIBRARY"] = env_lib
+        pkg_parent = os.path.dirname(os.path.dirname(os.path.abspath(psik.__file__)))
+        env["PYTHONPATH"] = pkg_parent + os.pathsep + env.get("PYTHONPATH", "")
+        code = "import psik, sys; sys.stdout.write(psik.library_path())"
+        return subprocess.run([sys.executable, "-c", code], env=env, capture_output=True,
+                              text=True)
+
+    def test_env_var_is_used(self):
+        path = psik.library_path()
+        r = self.run_py(os.path.abspath(path))
+        self.assertEqual(r.returncode, 0, r.stderr)
+        self.assertEqual(r.stdout, os.path.abspath(path))
+
+    def test_env_var_missing_file(self):
+        r = self.run_py("/nonexistent/libpsik.so.1")
+        self.assertNotEqual(r.returncode, 0)
+        self.assertIn("/nonexistent/libpsik.so.1", r.stderr)
+        self.assertIn("PSIK_LIBRARY", r.stderr)
+
+
+def tearDownModule():
+    for k in sorted(WORST):
+        print("# largest %s relative error: %.3g" % (k, WORST[k]))
+
+
+if __name__ == "__main__":
+    unittest.main()
