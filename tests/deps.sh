@@ -1,7 +1,7 @@
 #!/bin/sh
 # Install what the tests need when it is missing. As root this runs apt-get;
 # otherwise it prints the exact command and stops.
-PKGS="libcmocka-dev doxygen python3-mpmath python3-scipy python3-numpy gfortran clang"
+PKGS="libcmocka-dev doxygen python3-mpmath python3-scipy python3-numpy gfortran clang g++ pkgconf python3-setuptools python3-pip"
 missing=""
 for p in $PKGS; do
     dpkg-query -W -f='${Status}' "$p" 2>/dev/null | grep -q "install ok installed" || missing="$missing $p"
