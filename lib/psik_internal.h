@@ -88,5 +88,21 @@ PSIK_HIDDEN double psik__beta(double a, double b);
 PSIK_HIDDEN double psik__pow2(double x, double e_hi, double e_lo);
 /* Split 1/d into hi + lo with hi = fl(1/d). */
 PSIK_HIDDEN void psik__recip2(double num, double den, double *hi, double *lo);
+/* Inverse complementary error function, 0 <= t <= 2 (NaN outside;
+ * +inf at 0, -inf at 2); within 2 ulp, erfcinv(2 - t) = -erfcinv(t) used
+ * on (1, 2) so the digits of t near 2 are kept. */
+PSIK_HIDDEN double psik__erfcinv(double t);
+/* The standard normal distribution at z = zh + zl (|zl| <= ulp(zh), the
+ * lo part entering to first order, so that rounding of z costs no
+ * z^2 ulp): density, upper tail Q(z) = erfc(z/sqrt 2)/2, Mills ratio
+ * Q/phi (z >= -37), ln Q as hi + lo (where Q underflows), each a few ulp. */
+PSIK_HIDDEN double psik__normpdf(double zh, double zl);
+PSIK_HIDDEN double psik__normq(double zh, double zl);
+PSIK_HIDDEN double psik__mills(double zh, double zl);
+PSIK_HIDDEN void psik__lognormq(double zh, double zl, double *hi, double *lo);
+/* The z with Q(z) = p, 0 < p < 1, as hi + lo (condition-limited error). */
+PSIK_HIDDEN void psik__normq_inv(double p, double *hi, double *lo);
+/* ln(a/b) as hi + lo for finite a, b > 0 (absolute error ~1e-16). */
+PSIK_HIDDEN void psik__log_ratio(double a, double b, double *hi, double *lo);
 
 #endif
