@@ -249,6 +249,217 @@ PSIK_API void psik_eval_batch(const psik_model *m, size_t count, const double *h
                               double *theta, double *k, double *capacity, double *dk_dh);
 /**@}*/
 
+/**
+ * @name Fitting parameters to laboratory data
+ *
+ * psik_fit() estimates the parameters of any kind from a retention data
+ * set (pressure head, water content, weight) and an optional conductivity
+ * data set (pressure head, K, weight) by weighted nonlinear least squares.
+ *
+ * @par Objective
+ * SSE = sum_i w_i (theta(h_i) - theta_i)^2
+ *     + k_weight * sum_j v_j (log10 K(h_j) - log10 K_j)^2,
+ * with w_i, v_j the point weights (1 when not given) and k_weight the
+ * relative weight of the conductivity set (1 when not given).
+ *
+ * @par Method
+ * - Starts: a quasi-random (Halton) sample of the shape parameters over
+ *   their bounds, narrowed to the heads seen in the data for parameters
+ *   that are heads (names starting with "h_") or inverse heads ("alpha"),
+ *   with theta_r, theta_s and log10 ks solved exactly for each sample by
+ *   linear least squares (variable projection). The best distinct samples
+ *   start a Levenberg-Marquardt run each (psik_fit_options.starts).
+ * - Levenberg-Marquardt with Nielsen's damping update, in internal
+ *   variables that are logarithms for positive parameters whose bounds
+ *   span three decades or more (alpha, ks); bounds are handled by
+ *   projection with an active set (a variable at a bound whose gradient
+ *   points outward is held for that step). Each step solves the damped
+ *   problem through a one-sided Jacobi SVD of the column-scaled Jacobian
+ *   (no normal equations are formed).
+ * - Jacobian: analytic in theta_r, theta_s and ks for every kind, analytic
+ *   in every parameter for PSIK_VGM; other parameters by central
+ *   differences with one Richardson extrapolation (truncation O(step^4),
+ *   relative step 1e-3): about 1e-10 relative, measured against the
+ *   analytic PSIK_VGM Jacobian by tests/unit/test_fit.c.
+ * - Uncertainty: covariance s^2 (J^T J)^+ with s^2 = SSE / (N - p), from
+ *   the SVD of the Jacobian in the original parameters (singular values
+ *   below 1e-12 of the largest are dropped and the affected parameters
+ *   get NaN errors); intervals estimate +- t(1 - (1-c)/2, N - p) x error.
+ * - Parameters the data cannot determine are held ("auto-fixed", see
+ *   PSIK_FIT_AUTOFIXED): every parameter that does not change theta when
+ *   there is no conductivity data; every such parameter except ks when
+ *   the conductivity data has no unsaturated point. Held values: the
+ *   caller's psik_fit_options.value when finite, else 0.5 for l (Mualem
+ *   1976) and the middle of the range (geometric for log variables) for
+ *   the others. psik_fit_result.note says which and why.
+ *
+ * @par Data rules (psik_fit() returns PSIK_EDATA with a message naming
+ * the set and the point, e.g. "retention point 4 (h = -30): theta is NaN")
+ * - NaN or infinite h, theta, K or weight; theta < 0 or theta > 1;
+ *   K <= 0; weight < 0; fewer points than free parameters + 1; retention
+ *   heads that are all saturated or fewer distinct heads than the free
+ *   parameters that shape theta: refused.
+ * - Heads need not be sorted; repeated heads are replicates and are
+ *   welcome. Heads h >= 0 are saturated points (theta = theta_s there).
+ *   A weight of 0 drops the point from the sums but not from the counts.
+ *
+ * @par Memory and threads
+ * psik_fit() makes one allocation (malloc) of about
+ * (6 + 3 p) N + 400 (p + 1) doubles for N points and p parameters and frees
+ * it before returning (PSIK_ENOMEM when it fails). No global state.
+ */
+/**@{*/
+
+/** One data set for psik_fit(): retention points, optionally conductivity. */
+typedef struct psik_fit_data {
+    size_t n_theta;        /**< number of retention points */
+    const double *h_theta; /**< pressure heads of the retention points */
+    const double *theta;   /**< water contents, in [0, 1] */
+    const double *w_theta; /**< weights >= 0, or NULL for 1 */
+    size_t n_k;            /**< number of conductivity points (0: none) */
+    const double *h_k;     /**< pressure heads of the conductivity points */
+    const double *k;       /**< conductivities > 0 (the unit of ks) */
+    const double *w_k;     /**< weights >= 0, or NULL for 1 */
+    double k_weight;       /**< relative weight of the log10 K residuals;
+                                0 or NaN means 1 */
+} psik_fit_data;
+
+/** Per-parameter flags in psik_fit_result.flag (bits). */
+enum {
+    PSIK_FIT_FREE      = 0,  /**< estimated */
+    PSIK_FIT_FIXED     = 1,  /**< held at the caller's value */
+    PSIK_FIT_AUTOFIXED = 2,  /**< held because the data cannot determine it */
+    PSIK_FIT_AT_LOWER  = 4,  /**< estimated, ended on its lower bound */
+    PSIK_FIT_AT_UPPER  = 8,  /**< estimated, ended on its upper bound */
+    PSIK_FIT_UNDEFINED = 16  /**< estimated, but its error is undefined
+                                  (no degrees of freedom or a flat direction) */
+};
+
+/** Why the best Levenberg-Marquardt run stopped (psik_fit_result.stop). */
+typedef enum {
+    PSIK_FIT_STOP_STEP = 1,      /**< relative step below the tolerance */
+    PSIK_FIT_STOP_REDUCTION,     /**< relative SSE reduction below the tolerance */
+    PSIK_FIT_STOP_GRADIENT,      /**< projected gradient below the tolerance */
+    PSIK_FIT_STOP_EXACT,         /**< SSE reached 0 */
+    PSIK_FIT_STOP_MAXITER,       /**< iteration limit reached */
+    PSIK_FIT_STOP_STALLED        /**< no damping gave a decrease */
+} psik_fit_stop;
+
+/** Options of psik_fit(). Fill with psik_fit_defaults() first. */
+typedef struct psik_fit_options {
+    int fixed[PSIK_MAX_PARAMS];    /**< nonzero: hold parameter i at value[i] */
+    double value[PSIK_MAX_PARAMS]; /**< held values; for free parameters a
+                                        start value when finite (NaN: none) */
+    double lo[PSIK_MAX_PARAMS];    /**< lower bounds; NaN: psik_param_range() */
+    double hi[PSIK_MAX_PARAMS];    /**< upper bounds; NaN: psik_param_range() */
+    int starts;                    /**< Levenberg-Marquardt runs (default 8) */
+    int samples;                   /**< candidate samples (default 150 per
+                                        sampled parameter, at most 4000) */
+    int max_iter;                  /**< iterations per run (default 400) */
+    double tol;                    /**< relative tolerance (default 1e-14) */
+    double confidence;             /**< interval level in (0, 1) (default 0.95) */
+} psik_fit_options;
+
+/** The outcome of psik_fit(): plain data. */
+typedef struct psik_fit_result {
+    int kind;                          /**< the psik_kind fitted */
+    int npar;                          /**< its number of parameters */
+    double par[PSIK_MAX_PARAMS];       /**< estimates (held values for held ones) */
+    double std_err[PSIK_MAX_PARAMS];   /**< standard errors; 0 for held, NaN undefined */
+    double ci_lo[PSIK_MAX_PARAMS];     /**< lower end of the confidence interval */
+    double ci_hi[PSIK_MAX_PARAMS];     /**< upper end of the confidence interval */
+    int flag[PSIK_MAX_PARAMS];         /**< PSIK_FIT_* bits per parameter */
+    double corr[PSIK_MAX_PARAMS][PSIK_MAX_PARAMS]; /**< correlation matrix (0 rows
+                                                        and columns for held ones) */
+    double sse;        /**< weighted sum of squares (the objective) */
+    double sse_theta;  /**< its retention part */
+    double sse_logk;   /**< its conductivity part (with k_weight) */
+    double rmse;       /**< sqrt(SSE / N) */
+    double r2;         /**< weighted R^2 of the retention set */
+    double r2_logk;    /**< weighted R^2 of log10 K (NaN without K data) */
+    double aic;        /**< N ln(SSE/N) + 2 (p + 1): Gaussian errors, the
+                            error variance counted as a parameter */
+    double aicc;       /**< AIC + 2 (p+1)(p+2) / (N - p - 2) (inf when N <= p + 2) */
+    double bic;        /**< N ln(SSE/N) + (p + 1) ln N */
+    double t_value;    /**< Student t quantile used for the intervals */
+    double confidence; /**< interval level used */
+    int n_obs;         /**< N: retention points + conductivity points */
+    int n_theta;       /**< retention points */
+    int n_k;           /**< conductivity points */
+    int n_free;        /**< p: estimated parameters */
+    int dof;           /**< N - p */
+    int iterations;    /**< Levenberg-Marquardt iterations, all runs */
+    int starts;        /**< Levenberg-Marquardt runs made */
+    int evaluations;   /**< residual vector evaluations, all runs */
+    int stop;          /**< psik_fit_stop of the best run */
+    char note[512];    /**< sentences on held parameters and bounds hit */
+} psik_fit_result;
+
+/** Fill @p o with the defaults (all free, kind bounds, 8 starts, 0.95). */
+PSIK_API void psik_fit_defaults(psik_fit_options *o);
+
+/**
+ * Fit the parameters of @p kind to @p data (method, rules and memory
+ * under "Fitting parameters to laboratory data").
+ * @param kind  any kind of the table
+ * @param data  the data; only read
+ * @param opt   options, or NULL for psik_fit_defaults()
+ * @param res   the result (written on PSIK_OK; zeroed otherwise)
+ * @param msg   a sentence on what is wrong (or empty), may be NULL
+ * @param cap   size of @p msg
+ * @return PSIK_OK; PSIK_EINVAL for NULL pointers, unknown kind, bad
+ *         options (bounds outside the domain, lo > hi, a held value
+ *         outside the domain); PSIK_EDATA for unusable data;
+ *         PSIK_ENOMEM; PSIK_ENOCONV when no start gave a finite SSE.
+ */
+PSIK_API psik_status psik_fit(psik_kind kind, const psik_fit_data *data,
+                              const psik_fit_options *opt, psik_fit_result *res,
+                              char *msg, size_t cap);
+
+/**
+ * The Jacobian of the weighted residual vector of @p data at @p par:
+ * retention rows first, then conductivity rows, one column per parameter
+ * (row-major, @p jac holds (n_theta + n_k) x psik_param_count(kind)
+ * doubles). @p numeric nonzero forces the Richardson-extrapolated central
+ * differences for every column that is not analytic for all kinds (for
+ * testing the analytic columns); 0 uses the psik_fit() choice.
+ * Residuals are sqrt(w)(theta(h) - theta) and sqrt(k_weight v)(log10 K(h) - log10 K).
+ * @return PSIK_OK, PSIK_EINVAL (NULL, unknown kind), PSIK_EDOMAIN (invalid
+ *         @p par or a difference step leaves the domain on both sides).
+ */
+PSIK_API psik_status psik_fit_jacobian(psik_kind kind, const psik_fit_data *data,
+                                       const double *par, int numeric, double *jac);
+
+/** Name of a psik_fit_stop, e.g. "relative step below tolerance"; never NULL. */
+PSIK_API const char *psik_fit_stop_name(int stop);
+
+/**
+ * Quantile of Student's t distribution: the t with P(T <= t) = @p p for
+ * @p dof degrees of freedom (dof > 0, not necessarily an integer).
+ * Method: closed forms for dof = 1 and 2; otherwise Newton's method on the
+ * distribution function written through the regularized incomplete beta
+ * function, from a Cornish-Fisher start, safeguarded by bisection.
+ * Accuracy: within 1e-12 relative of scipy.stats.t.ppf over
+ * 1e-10 <= p <= 1 - 1e-10, 1 <= dof <= 1e6 (tests/unit/test_fit.c).
+ * @return the quantile; -inf for p = 0, +inf for p = 1, NaN for p outside
+ *         [0, 1], NaN p or dof <= 0.
+ */
+PSIK_API double psik_t_quantile(double p, double dof);
+
+/**
+ * Rank fits of several kinds to the same data by AICc (smallest first).
+ * @param fits    @p count results from psik_fit() on the same data
+ * @param count   number of results
+ * @param order   out: indices into @p fits, best first
+ * @param weight  out (may be NULL): Akaike weights exp(-dAICc/2), normalized
+ *                to sum 1, in the order of @p fits
+ * @return PSIK_OK, PSIK_EINVAL (NULL, count 0, or fits with different
+ *         numbers of points, which cannot be compared).
+ */
+PSIK_API psik_status psik_fit_rank(const psik_fit_result *fits, size_t count,
+                                   size_t *order, double *weight);
+/**@}*/
+
 #ifdef __cplusplus
 }
 #endif
