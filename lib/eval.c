@@ -147,6 +147,11 @@ PSIK_API void psik_eval_batch(const psik_model *m, size_t count, const double *h
 {
     size_t i;
     psik_state st;
+    const psik_family *f = fam(m);
+    if (f != NULL && h != NULL && f->batch != NULL) {
+        f->batch(m, count, h, theta, k, capacity, dk_dh);
+        return;
+    }
     if (h == NULL) {
         for (i = 0; i < count; i++) {
             if (theta) theta[i] = NAN;

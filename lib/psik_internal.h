@@ -60,6 +60,12 @@ typedef struct psik_family {
     void (*point_se)(const psik_model *m, double se, psik_point *out);
     /* Suction at effective saturation 0 < se < 1. */
     double (*suction)(const psik_model *m, double se);
+    /* Optional (NULL: psik_eval_batch loops over psik_eval). The whole of
+     * psik_eval_batch for this kind, h != NULL and m valid: every special
+     * case (NaN, saturated, NULL outputs) is the batch function's to
+     * handle, and its values must equal psik_eval's (lib/batch_*.c). */
+    void (*batch)(const psik_model *m, size_t count, const double *h,
+                  double *theta, double *k, double *capacity, double *dk_dh);
 } psik_family;
 
 /* The table (kinds.c). */
