@@ -1,0 +1,330 @@
+!> @file psik.f90
+!> Fortran binding of psik (ISO_C_BINDING): module `psik`.
+!>
+!> The derived types psik_model and psik_state are bind(c) mirrors of the C
+!> structs (ABI version 1: 304 and 48 bytes); the status and kind constants
+!> carry their C names; the procedures have the C names and semantics:
+!> heads and water contents are passed by value, parameter vectors as
+!> arrays in kind order, indices are 0-based as in C.
+!>
+!> Differences forced by Fortran:
+!> - Fortran names are case-insensitive, so the C function psik_vgm (which
+!>   would clash with the kind constant PSIK_VGM) is psik_init_vgm here.
+!> - psik_init is a module function that calls psik_init_abi with this
+!>   module's PSIK_ABI_VERSION and c_sizeof(m): a module built against
+!>   another layout gets PSIK_EABI instead of a corrupted model.
+!> - Functions returning C strings return character(len=:), allocatable
+!>   ("" for NULL); psik_check writes its message into a character variable.
+!> - psik_eval_batch takes optional output arrays (absent = NULL in C).
+module psik
+  use, intrinsic :: iso_c_binding
+  implicit none
+  private :: c_to_f, f_to_c
+
+  integer(c_int), parameter :: PSIK_ABI_VERSION = 1
+  integer(c_int), parameter :: PSIK_MAX_PARAMS = 16
+
+  ! psik_status
+  integer(c_int), parameter :: PSIK_OK = 0, PSIK_EINVAL = 1, PSIK_EDOMAIN = 2, &
+       PSIK_ENOCONV = 3, PSIK_EDATA = 4, PSIK_ENOMEM = 5, PSIK_EABI = 6
+
+  ! psik_kind
+  integer(c_int), parameter :: PSIK_VGM = 1, PSIK_VGM_AE = 2, PSIK_VG_FREE_M = 3, &
+       PSIK_VGB = 4, PSIK_BCM = 5, PSIK_BCB = 6, PSIK_KOSUGI = 7, PSIK_DURNER2 = 8, &
+       PSIK_DURNER3 = 9, PSIK_GARDNER = 10
+
+  !> struct psik_model: fill it only with psik_init or psik_init_vgm.
+  type, bind(c) :: psik_model
+     integer(c_int) :: kind = 0          ! psik_kind; 0 when not initialised
+     integer(c_int) :: npar = 0
+     integer(c_int) :: abi_size = 0      ! unsigned int in C
+     integer(c_int) :: abi_version = 0   ! unsigned int in C
+     real(c_double) :: par(PSIK_MAX_PARAMS) = 0
+     real(c_double) :: theta_r = 0, theta_s = 0, ks = 0, h_sat = 0
+     real(c_double) :: aux(PSIK_MAX_PARAMS) = 0
+  end type psik_model
+
+  !> struct psik_state: all properties at one head (psik_eval).
+  type, bind(c) :: psik_state
+     real(c_double) :: se, theta, kr, k, capacity, dk_dh
+  end type psik_state
+
+  interface
+     function psik_strerror_c(s) bind(c, name="psik_strerror") result(p)
+       import :: c_int, c_ptr
+       integer(c_int), value :: s
+       type(c_ptr) :: p
+     end function
+     function psik_version_c() bind(c, name="psik_version") result(p)
+       import :: c_ptr
+       type(c_ptr) :: p
+     end function
+     function psik_kind_name_c(kind) bind(c, name="psik_kind_name") result(p)
+       import :: c_int, c_ptr
+       integer(c_int), value :: kind
+       type(c_ptr) :: p
+     end function
+     function psik_kind_title_c(kind) bind(c, name="psik_kind_title") result(p)
+       import :: c_int, c_ptr
+       integer(c_int), value :: kind
+       type(c_ptr) :: p
+     end function
+     function psik_kind_from_name_c(name) bind(c, name="psik_kind_from_name") result(k)
+       import :: c_int, c_char
+       character(kind=c_char), intent(in) :: name(*)
+       integer(c_int) :: k
+     end function
+     function psik_param_name_c(kind, i) bind(c, name="psik_param_name") result(p)
+       import :: c_int, c_ptr
+       integer(c_int), value :: kind, i
+       type(c_ptr) :: p
+     end function
+     function psik_param_index_c(kind, name) bind(c, name="psik_param_index") result(i)
+       import :: c_int, c_char
+       integer(c_int), value :: kind
+       character(kind=c_char), intent(in) :: name(*)
+       integer(c_int) :: i
+     end function
+     function psik_check_c(kind, par, msg, cap) bind(c, name="psik_check") result(st)
+       import :: c_int, c_double, c_char, c_size_t
+       integer(c_int), value :: kind
+       real(c_double), intent(in) :: par(*)
+       character(kind=c_char), intent(out) :: msg(*)
+       integer(c_size_t), value :: cap
+       integer(c_int) :: st
+     end function
+
+     !> Number of parameters of kind; -1 when unknown.
+     function psik_param_count(kind) bind(c, name="psik_param_count") result(n)
+       import :: c_int
+       integer(c_int), value :: kind
+       integer(c_int) :: n
+     end function
+     !> Plausible range of parameter i (0-based) of kind.
+     function psik_param_range(kind, i, lo, hi) bind(c, name="psik_param_range") result(st)
+       import :: c_int, c_double
+       integer(c_int), value :: kind, i
+       real(c_double), intent(out) :: lo, hi
+       integer(c_int) :: st
+     end function
+     !> psik_init with the caller's layout (version, size).
+     function psik_init_abi(m, kind, par, abi_version, size) &
+          bind(c, name="psik_init_abi") result(st)
+       import :: psik_model, c_int, c_double, c_size_t
+       type(psik_model), intent(inout) :: m
+       integer(c_int), value :: kind
+       real(c_double), intent(in) :: par(*)
+       integer(c_int), value :: abi_version
+       integer(c_size_t), value :: size
+       integer(c_int) :: st
+     end function
+     !> van Genuchten-Mualem with l = 0.5 (C psik_vgm).
+     function psik_init_vgm(m, theta_r, theta_s, alpha, n, ks) &
+          bind(c, name="psik_vgm") result(st)
+       import :: psik_model, c_int, c_double
+       type(psik_model), intent(inout) :: m
+       real(c_double), value :: theta_r, theta_s, alpha, n, ks
+       integer(c_int) :: st
+     end function
+     !> Number of parameters of an initialised model, copied into par.
+     function psik_model_params(m, par) bind(c, name="psik_model_params") result(n)
+       import :: psik_model, c_int, c_double
+       type(psik_model), intent(in) :: m
+       real(c_double), intent(out) :: par(*)
+       integer(c_int) :: n
+     end function
+
+     function psik_se(m, h) bind(c, name="psik_se") result(v)
+       import :: psik_model, c_double
+       type(psik_model), intent(in) :: m
+       real(c_double), value :: h
+       real(c_double) :: v
+     end function
+     function psik_theta(m, h) bind(c, name="psik_theta") result(v)
+       import :: psik_model, c_double
+       type(psik_model), intent(in) :: m
+       real(c_double), value :: h
+       real(c_double) :: v
+     end function
+     function psik_head(m, theta) bind(c, name="psik_head") result(v)
+       import :: psik_model, c_double
+       type(psik_model), intent(in) :: m
+       real(c_double), value :: theta
+       real(c_double) :: v
+     end function
+     function psik_head_se(m, se) bind(c, name="psik_head_se") result(v)
+       import :: psik_model, c_double
+       type(psik_model), intent(in) :: m
+       real(c_double), value :: se
+       real(c_double) :: v
+     end function
+     function psik_kr(m, h) bind(c, name="psik_kr") result(v)
+       import :: psik_model, c_double
+       type(psik_model), intent(in) :: m
+       real(c_double), value :: h
+       real(c_double) :: v
+     end function
+     function psik_k(m, h) bind(c, name="psik_k") result(v)
+       import :: psik_model, c_double
+       type(psik_model), intent(in) :: m
+       real(c_double), value :: h
+       real(c_double) :: v
+     end function
+     function psik_k_theta(m, theta) bind(c, name="psik_k_theta") result(v)
+       import :: psik_model, c_double
+       type(psik_model), intent(in) :: m
+       real(c_double), value :: theta
+       real(c_double) :: v
+     end function
+     function psik_capacity(m, h) bind(c, name="psik_capacity") result(v)
+       import :: psik_model, c_double
+       type(psik_model), intent(in) :: m
+       real(c_double), value :: h
+       real(c_double) :: v
+     end function
+     function psik_dk_dh(m, h) bind(c, name="psik_dk_dh") result(v)
+       import :: psik_model, c_double
+       type(psik_model), intent(in) :: m
+       real(c_double), value :: h
+       real(c_double) :: v
+     end function
+     function psik_diffusivity(m, theta) bind(c, name="psik_diffusivity") result(v)
+       import :: psik_model, c_double
+       type(psik_model), intent(in) :: m
+       real(c_double), value :: theta
+       real(c_double) :: v
+     end function
+     !> All properties at one head.
+     subroutine psik_eval(m, h, out) bind(c, name="psik_eval")
+       import :: psik_model, psik_state, c_double
+       type(psik_model), intent(in) :: m
+       real(c_double), value :: h
+       type(psik_state), intent(out) :: out
+     end subroutine
+     !> psik_eval over count heads; absent outputs are skipped.
+     subroutine psik_eval_batch(m, count, h, theta, k, capacity, dk_dh) &
+          bind(c, name="psik_eval_batch")
+       import :: psik_model, c_double, c_size_t
+       type(psik_model), intent(in) :: m
+       integer(c_size_t), value :: count
+       real(c_double), intent(in) :: h(*)
+       real(c_double), intent(out), optional :: theta(*), k(*), capacity(*), dk_dh(*)
+     end subroutine
+  end interface
+
+contains
+
+  !> Copy a NUL-terminated C string into a Fortran string ("" for NULL).
+  function c_to_f(p) result(s)
+    type(c_ptr), intent(in) :: p
+    character(len=:), allocatable :: s
+    character(kind=c_char), pointer :: a(:)
+    integer :: n
+    interface
+       function strlen(q) bind(c, name="strlen") result(len)
+         import :: c_ptr, c_size_t
+         type(c_ptr), value :: q
+         integer(c_size_t) :: len
+       end function
+    end interface
+    if (.not. c_associated(p)) then
+       s = ""
+       return
+    end if
+    n = int(strlen(p))
+    call c_f_pointer(p, a, [n])
+    allocate(character(len=n) :: s)
+    s = transfer(a(1:n), s)
+  end function c_to_f
+
+  !> A trimmed Fortran string as a NUL-terminated C string.
+  pure function f_to_c(s) result(c)
+    character(len=*), intent(in) :: s
+    character(kind=c_char, len=len_trim(s) + 1) :: c
+    c = trim(s) // c_null_char
+  end function f_to_c
+
+  !> A sentence describing status s.
+  function psik_strerror(s) result(text)
+    integer(c_int), intent(in) :: s
+    character(len=:), allocatable :: text
+    text = c_to_f(psik_strerror_c(s))
+  end function
+
+  !> The library's version string.
+  function psik_version() result(text)
+    character(len=:), allocatable :: text
+    text = c_to_f(psik_version_c())
+  end function
+
+  !> Short name of a kind ("vgm", ...); "" when unknown.
+  function psik_kind_name(kind) result(text)
+    integer(c_int), intent(in) :: kind
+    character(len=:), allocatable :: text
+    text = c_to_f(psik_kind_name_c(kind))
+  end function
+
+  !> One line describing a kind with its reference; "" when unknown.
+  function psik_kind_title(kind) result(text)
+    integer(c_int), intent(in) :: kind
+    character(len=:), allocatable :: text
+    text = c_to_f(psik_kind_title_c(kind))
+  end function
+
+  !> The kind with short name `name` (trailing blanks ignored); 0 when unknown.
+  function psik_kind_from_name(name) result(kind)
+    character(len=*), intent(in) :: name
+    integer(c_int) :: kind
+    character(kind=c_char, len=len_trim(name) + 1), target :: c
+    c = f_to_c(name)
+    kind = psik_kind_from_name_c(c)
+  end function
+
+  !> Name of parameter i (0-based) of kind; "" when out of range.
+  function psik_param_name(kind, i) result(text)
+    integer(c_int), intent(in) :: kind, i
+    character(len=:), allocatable :: text
+    text = c_to_f(psik_param_name_c(kind, i))
+  end function
+
+  !> 0-based index of the parameter named `name` in kind; -1 when none.
+  function psik_param_index(kind, name) result(i)
+    integer(c_int), intent(in) :: kind
+    character(len=*), intent(in) :: name
+    integer(c_int) :: i
+    character(kind=c_char, len=len_trim(name) + 1), target :: c
+    c = f_to_c(name)
+    i = psik_param_index_c(kind, c)
+  end function
+
+  !> Validate a parameter vector; msg (optional) receives the sentence that
+  !> names the offending parameter, blank-padded (or blank when valid).
+  function psik_check(kind, par, msg) result(st)
+    integer(c_int), intent(in) :: kind
+    real(c_double), intent(in) :: par(*)
+    character(len=*), intent(out), optional :: msg
+    integer(c_int) :: st
+    character(kind=c_char) :: buf(512)
+    integer :: i
+    buf = c_null_char
+    st = psik_check_c(kind, par, buf, int(size(buf), c_size_t))
+    if (present(msg)) then
+       msg = ""
+       do i = 1, min(len(msg), size(buf))
+          if (buf(i) == c_null_char) exit
+          msg(i:i) = buf(i)
+       end do
+    end if
+  end function
+
+  !> Build a model (C psik_init through the layout check: returns
+  !> PSIK_EABI when this module and the library disagree on the layout).
+  function psik_init(m, kind, par) result(st)
+    type(psik_model), intent(inout) :: m
+    integer(c_int), intent(in) :: kind
+    real(c_double), intent(in) :: par(*)
+    integer(c_int) :: st
+    st = psik_init_abi(m, kind, par, PSIK_ABI_VERSION, c_sizeof(m))
+  end function
+
+end module psik

@@ -1,0 +1,44 @@
+/* ref_values.c - values from C for tests/fortran/test_binding.f90: for every
+ * kind the library has, a parameter vector a quarter of the way through each
+ * plausible range, then psik_* at a set of heads (%.17e round-trips doubles).
+ * First line: psik_check's message for an invalid vgm vector. */
+#include <stdio.h>
+#include "psik.h"
+
+int main(void)
+{
+    static const double heads[] = { -1e-4, -0.1, -1.0, -10.0, -33.0, -100.0, -1000.0,
+                                    -15000.0, -1e6, 0.0 };
+    const int nh = (int)(sizeof heads / sizeof heads[0]);
+    const double bad[6] = { 0.078, 0.43, 0.036, 0.9, 24.96, 0.5 };
+    char msg[512];
+    int kind, i, j;
+    psik_check(PSIK_VGM, bad, msg, sizeof msg);
+    printf("%s\n", msg);
+    for (kind = 1; kind < 64; kind++) {
+        double par[PSIK_MAX_PARAMS];
+        psik_model m;
+        int np = psik_param_count((psik_kind)kind);
+        if (np < 0)
+            continue;
+        for (j = 0; j < np; j++) {
+            double lo, hi;
+            psik_param_range((psik_kind)kind, j, &lo, &hi);
+            par[j] = lo + 0.25 * (hi - lo);
+        }
+        if (psik_init(&m, (psik_kind)kind, par) != PSIK_OK)
+            continue;
+        printf("%d %d\n", kind, np);
+        for (j = 0; j < np; j++)
+            printf("%.17e\n", par[j]);
+        printf("%d\n", nh);
+        for (i = 0; i < nh; i++) {
+            double h = heads[i], th = psik_theta(&m, h);
+            printf("%.17e %.17e %.17e %.17e %.17e %.17e %.17e %.17e %.17e %.17e\n", h,
+                   psik_se(&m, h), th, psik_kr(&m, h), psik_k(&m, h), psik_capacity(&m, h),
+                   psik_dk_dh(&m, h), psik_head(&m, th), psik_k_theta(&m, th),
+                   psik_diffusivity(&m, th));
+        }
+    }
+    return 0;
+}

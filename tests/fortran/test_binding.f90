@@ -1,0 +1,131 @@
+! test_binding.f90 - the Fortran module psik against the C library.
+! Sources: layout numbers from include/psik.h ABI 1 (as tests/unit/test_abi.c);
+! values and messages from the C library itself, written by ref_values.c
+! (read from the file named on the command line; exact comparisons are
+! intended: built with -Wno-compare-reals); kind names from the
+! DESIGN.md API contract. Prints "ok"/"FAIL" lines and a closing count.
+program test_binding
+  use, intrinsic :: iso_c_binding
+  use psik
+  implicit none
+  type(psik_model), target :: m, m2
+  type(psik_state) :: st
+  integer :: npass = 0, nfail = 0, u, ios, kind, np, nh, i, ncmp, ndiff
+  integer(c_intptr_t) :: base
+  real(c_double) :: par(PSIK_MAX_PARAMS), row(10), got(10)
+  real(c_double), allocatable :: hs(:), th(:), dk(:), kk(:)
+  character(len=512) :: cmsg, fmsg, path
+  character(len=10), parameter :: names(10) = [character(len=10) :: "vgm", "vgm_ae", &
+       "vg_free_m", "vgb", "bcm", "bcb", "kosugi", "durner2", "durner3", "gardner"]
+  integer(c_int), parameter :: consts(10) = [PSIK_VGM, PSIK_VGM_AE, PSIK_VG_FREE_M, &
+       PSIK_VGB, PSIK_BCM, PSIK_BCB, PSIK_KOSUGI, PSIK_DURNER2, PSIK_DURNER3, PSIK_GARDNER]
+  integer :: nknown
+
+  ! --- layout (ABI 1)
+  base = transfer(c_loc(m), base)
+  call check(c_sizeof(m) == 304_c_size_t, "c_sizeof(psik_model) = 304")
+  call check(c_sizeof(st) == 48_c_size_t, "c_sizeof(psik_state) = 48")
+  call check(off(c_loc(m%npar)) == 4 .and. off(c_loc(m%abi_size)) == 8 .and. &
+       off(c_loc(m%abi_version)) == 12 .and. off(c_loc(m%par)) == 16 .and. &
+       off(c_loc(m%theta_r)) == 144 .and. off(c_loc(m%theta_s)) == 152 .and. &
+       off(c_loc(m%ks)) == 160 .and. off(c_loc(m%h_sat)) == 168 .and. &
+       off(c_loc(m%aux)) == 176, "offsets of psik_model fields = C offsetof")
+
+  ! --- constants against the library's table
+  nknown = 0
+  do i = 1, 10
+     if (psik_kind_name(consts(i)) /= "") then
+        nknown = nknown + 1
+        call check(psik_kind_name(consts(i)) == trim(names(i)) .and. &
+             psik_kind_from_name(trim(names(i))) == consts(i), "kind constant " // trim(names(i)))
+     end if
+  end do
+  print '(a,i0,a)', "# ", nknown, " of the 10 kind constants are in the library's table"
+  call check(psik_kind_name(0_c_int) == "" .and. psik_kind_from_name("nonsense") == 0, &
+       "unknown kinds give empty name and 0")
+  call check(psik_strerror(PSIK_EABI) == "the header used by the caller does not match the library", &
+       "psik_strerror(PSIK_EABI) text")
+
+  ! --- building
+  par = 0
+  par(1:6) = [0.078d0, 0.43d0, 0.036d0, 1.56d0, 24.96d0, 0.5d0]
+  call check(psik_init(m, PSIK_VGM, par) == PSIK_OK, "psik_init(vgm loam)")
+  call check(m%abi_size == 304 .and. m%abi_version == PSIK_ABI_VERSION .and. m%npar == 6, &
+       "library records the layout in the model")
+  call check(psik_init_vgm(m2, 0.078d0, 0.43d0, 0.036d0, 1.56d0, 24.96d0) == PSIK_OK .and. &
+       psik_theta(m2, -100d0) == psik_theta(m, -100d0), "psik_init_vgm = psik_init with l = 0.5")
+  call check(psik_param_count(PSIK_VGM) == 6 .and. psik_param_name(PSIK_VGM, 2_c_int) == "alpha" &
+       .and. psik_param_index(PSIK_VGM, "ks") == 4 .and. psik_param_name(PSIK_VGM, 6_c_int) == "", &
+       "parameter names, 0-based as in C")
+  m2%kind = -7
+  call check(psik_init_abi(m2, PSIK_VGM, par, 2_c_int, c_sizeof(m2)) == PSIK_EABI .and. &
+       m2%kind == -7, "psik_init_abi mismatch: PSIK_EABI, model untouched")
+
+  ! --- values against C
+  call get_command_argument(1, path)
+  open(newunit=u, file=trim(path), status="old", action="read", iostat=ios)
+  call check(ios == 0, "open C reference " // trim(path))
+  if (ios /= 0) stop 1
+  read(u, '(a)') cmsg
+  par(1:6) = [0.078d0, 0.43d0, 0.036d0, 0.9d0, 24.96d0, 0.5d0]
+  call check(psik_check(PSIK_VGM, par, fmsg) == PSIK_EDOMAIN .and. fmsg == cmsg, &
+       "psik_check message = C's: " // trim(fmsg))
+  call check(psik_init(m2, PSIK_VGM, par) == PSIK_EDOMAIN .and. m2%kind == 0, &
+       "psik_init refuses n = 0.9 and clears the model")
+  ncmp = 0; ndiff = 0
+  do
+     read(u, *, iostat=ios) kind, np
+     if (ios /= 0) exit
+     par = 0
+     read(u, *) par(1:np)
+     read(u, *) nh
+     if (psik_init(m, int(kind, c_int), par) /= PSIK_OK) then
+        ndiff = ndiff + 1
+        cycle
+     end if
+     allocate(hs(nh), th(nh), dk(nh), kk(nh))
+     do i = 1, nh
+        read(u, *) row
+        hs(i) = row(1)
+        got = [row(1), psik_se(m, row(1)), psik_theta(m, row(1)), psik_kr(m, row(1)), &
+             psik_k(m, row(1)), psik_capacity(m, row(1)), psik_dk_dh(m, row(1)), &
+             psik_head(m, row(3)), psik_k_theta(m, row(3)), psik_diffusivity(m, row(3))]
+        ncmp = ncmp + 9
+        ndiff = ndiff + count(got(2:10) /= row(2:10))
+        call psik_eval(m, row(1), st)
+        if (st%theta /= row(3) .or. st%k /= row(5) .or. st%capacity /= row(6)) ndiff = ndiff + 1
+     end do
+     call psik_eval_batch(m, int(nh, c_size_t), hs, theta=th, k=kk, dk_dh=dk)
+     do i = 1, nh
+        if (th(i) /= psik_theta(m, hs(i)) .or. dk(i) /= psik_dk_dh(m, hs(i)) .or. &
+            kk(i) /= psik_k(m, hs(i))) ndiff = ndiff + 1
+     end do
+     deallocate(hs, th, dk, kk)
+  end do
+  close(u)
+  print '(a,i0,a,i0,a)', "# ", ncmp, " values compared with C, ", ndiff, " differ"
+  call check(ncmp > 0 .and. ndiff == 0, "values from Fortran = values from C (bit for bit)")
+
+  print '(a,i0,a,i0,a)', "fortran-binding: ", npass, " passed, ", nfail, " failed"
+  if (nfail > 0) stop 1
+
+contains
+
+  subroutine check(cond, what)
+    logical, intent(in) :: cond
+    character(len=*), intent(in) :: what
+    if (cond) then
+       npass = npass + 1
+       print '(2a)', "ok   ", what
+    else
+       nfail = nfail + 1
+       print '(2a)', "FAIL ", what
+    end if
+  end subroutine
+
+  integer function off(p)
+    type(c_ptr), intent(in) :: p
+    off = int(transfer(p, base) - base)
+  end function
+
+end program test_binding
