@@ -15,6 +15,12 @@ extern const psik_family psik__fam_vgm;
 extern const psik_family psik__fam_vgm_ae;
 extern const psik_family psik__fam_vg_free_m;
 extern const psik_family psik__fam_vgb;
+extern const psik_family psik__fam_bcm;
+extern const psik_family psik__fam_bcb;
+extern const psik_family psik__fam_kosugi;
+extern const psik_family psik__fam_durner2;
+extern const psik_family psik__fam_durner3;
+extern const psik_family psik__fam_gardner;
 
 static const psik_family *const families[] = {
     NULL,                  /* 0: no kind */
@@ -22,6 +28,12 @@ static const psik_family *const families[] = {
     &psik__fam_vgm_ae,     /* PSIK_VGM_AE */
     &psik__fam_vg_free_m,  /* PSIK_VG_FREE_M */
     &psik__fam_vgb,        /* PSIK_VGB */
+    &psik__fam_bcm,        /* PSIK_BCM */
+    &psik__fam_bcb,        /* PSIK_BCB */
+    &psik__fam_kosugi,     /* PSIK_KOSUGI */
+    &psik__fam_durner2,    /* PSIK_DURNER2 */
+    &psik__fam_durner3,    /* PSIK_DURNER3 */
+    &psik__fam_gardner,    /* PSIK_GARDNER */
 };
 
 #define NFAMILIES ((int)(sizeof families / sizeof families[0]))

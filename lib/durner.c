@@ -1,0 +1,415 @@
+/* durner.c - the Durner (1994) multimodal van Genuchten retention model
+ * with Mualem conductivity in the closed form of Priesack & Durner (2006):
+ * two rows of the kinds table (durner2, durner3).
+ *
+ * Notation: s = -h > 0 suction; for each mode i: p_i = alpha_i s,
+ * x_i = p_i^n_i, m_i = 1 - 1/n_i, S_i = (1 + x_i)^-m_i, y_i = x_i/(1 + x_i),
+ * g_i = 1 - y_i^m_i (the Mualem integral ratio of the mode).
+ *   Se = sum w_i S_i,  G = sum w_i alpha_i g_i / sum w_i alpha_i,
+ *   Kr = Se^L G^2,  dKr/dh = Kr (L (dSe/dh)/Se + 2 (dG/dh)/G).
+ * Weights: durner2 w1, w2 = 1 - w1; durner3 w1, w2, w3 = 1 - w1 - w2.
+ *
+ * Method:
+ * - Each mode as in vg.c: on the wet branch (p <= 1) x = p^n and
+ *   S = exp(-m log1p x); on the dry branch u = p^-n and
+ *   S = p^-(n-1) (1 + u)^-m with the exact exponent n - 1, so the dry end
+ *   keeps its digits; g as 1 - y^m or -expm1(m ln y), whichever keeps
+ *   them. Every sum has positive terms only: no cancellation.
+ * - Kr = (Se^(L/2) G)^2: no overflow of Se^L for L < 0.
+ * - Inverse (no closed form): bracketed, safeguarded Newton's method on
+ *   F(t) = ln Se(e^t) - ln Se*, t = ln s, with the iterate kept as s itself
+ *   (multiplicative steps s exp(dt)), so that the answer carries no
+ *   |ln s| ulp from a rounded logarithm. The bracket comes from the modes:
+ *   each S_i is decreasing, so Se(min_i s_i) >= Se* >= Se(max_i s_i)
+ *   where S_i(s_i) = Se* (closed form). A Newton step that leaves the
+ *   bracket or fails to halve |F| is replaced by bisection in t; every
+ *   evaluation narrows the bracket. At most 200 evaluations (bisection
+ *   alone needs ~70 for the widest bracket a double allows), typically 5-8.
+ *   The result is accurate to the condition number of the inverse: where
+ *   the curve is nearly flat between modes Se barely changes with s and
+ *   any s on the flat stretch reproduces Se* to a few ulp.
+ * Error: measured against mpmath tables (tests/unit/test_accuracy.c);
+ * inverse worst cases in tests/unit/test_models.c.
+ */
+#include "psik_internal.h"
+
+#include <float.h>
+#include <math.h>
+
+/* aux layout: 4 slots per mode, then l, 1 / sum w_i alpha_i, mode count */
+#define A_ALPHA(i) (4 * (i) + 0)
+#define A_N(i)     (4 * (i) + 1)
+#define A_M(i)     (4 * (i) + 2)
+#define A_W(i)     (4 * (i) + 3)
+#define A_L        12
+#define A_INVSUM   13
+#define A_NMODES   14
+
+#define MAX_ITER 200
+
+typedef struct dur_sum {
+    double se;    /* sum w S */
+    double dse;   /* sum w dS/dh */
+    double g;     /* sum w alpha g */
+    double dg;    /* sum w alpha dg/dh */
+    double cse;   /* sum w (1 - S), kept exactly where S is near 1 */
+    double cg;    /* sum w alpha (1 - g) = sum w alpha y^m */
+} dur_sum;
+
+/* One mode at suction s (finite, > 0), accumulated into *acc. */
+static void mode_add(const double *a, int i, double s, dur_sum *acc)
+{
+    const double alpha = a[A_ALPHA(i)], n = a[A_N(i)], mm = a[A_M(i)], w = a[A_W(i)];
+    const double k = n - 1.0;     /* exact for n >= 1 */
+    double p = alpha * s, S, cS, g, dls, dg, ym;
+    if (p <= 1.0) {
+        double x = pow(p, n), r = 1.0 / (1.0 + x), y = x * r, l1 = log1p(x);
+        S = exp(-mm * l1);
+        cS = -expm1(-mm * l1);
+        ym = pow(p, k) * S;                   /* y^m = p^(m n) Se */
+        g = ym < 0.5 ? 1.0 - ym : -expm1(mm * log(y));
+        dls = k * alpha * pow(p, n - 1.0) * r;
+        dg = k * alpha * pow(p, k - 1.0) * S * r;
+    } else {
+        double u = pow(p, -n), b = log1p(u), y = 1.0 / (1.0 + u);
+        ym = exp(-mm * b);
+        S = pow(p, -k) * ym;
+        cS = S > 0.25 ? -expm1(-mm * (n * log(p) + b)) : 1.0 - S;
+        g = -expm1(-mm * b);
+        dls = k * alpha * y / p;
+        dg = k * alpha * ym * (u * y) / p;
+    }
+    acc->se += w * S;
+    acc->dse += w * S * dls;
+    acc->g += w * alpha * g;
+    acc->dg += w * alpha * dg;
+    acc->cse += w * cS;
+    acc->cg += w * alpha * ym;
+}
+
+static void dur_sums(const double *a, double s, dur_sum *acc)
+{
+    int i, nm = (int)a[A_NMODES];
+    acc->se = acc->dse = acc->g = acc->dg = acc->cse = acc->cg = 0.0;
+    for (i = 0; i < nm; i++)
+        mode_add(a, i, s, acc);
+}
+
+static void dur_point(const psik_model *m, double s, psik_point *out)
+{
+    const double *a = m->aux;
+    dur_sum q;
+    double r, kr;
+    if (isinf(s)) {
+        out->se = out->kr = out->dse = out->dkr = 0.0;
+        return;
+    }
+    dur_sums(a, s, &q);
+    out->se = q.se;
+    out->dse = q.dse;
+    if (!(q.se > 0.0) || !(q.g > 0.0)) {
+        out->kr = out->dkr = 0.0;
+        return;
+    }
+    {
+        double cgr = q.cg * a[A_INVSUM];     /* 1 - G */
+        if (q.cse < 0.5 && cgr < 0.5) {
+            /* near saturation: from the complements, which keep the digits
+             * that Se and G ~ 1 have lost */
+            kr = exp(a[A_L] * log1p(-q.cse) + 2.0 * log1p(-cgr));
+        } else {
+            r = pow(q.se, 0.5 * a[A_L]) * (q.g * a[A_INVSUM]);
+            kr = r * r;
+        }
+    }
+    out->kr = kr;
+    out->dkr = kr > 0.0 ? kr * (a[A_L] * (q.dse / q.se) + 2.0 * (q.dg / q.g)) : 0.0;
+}
+
+static double dur_se(const psik_model *m, double s)
+{
+    const double *a = m->aux;
+    int i, nm = (int)a[A_NMODES];
+    double se = 0.0;
+    if (isinf(s))
+        return 0.0;
+    for (i = 0; i < nm; i++) {
+        const double alpha = a[A_ALPHA(i)], n = a[A_N(i)], mm = a[A_M(i)];
+        double p = alpha * s;
+        if (p <= 1.0)
+            se += a[A_W(i)] * exp(-mm * log1p(pow(p, n)));
+        else
+            se += a[A_W(i)] * (pow(p, -(n - 1.0)) * exp(-mm * log1p(pow(p, -n))));
+    }
+    return se;
+}
+
+static double dur_kr(const psik_model *m, double s)
+{
+    psik_point out;
+    dur_point(m, s, &out);
+    return out.kr;
+}
+
+/* ln s_i with S_i(s_i) = se: s_i = (1/alpha) (se^(-1/m) - 1)^(1/n), in
+ * logarithms so that no power overflows (a bracket end, not the answer). */
+static double mode_log_suction(const double *a, int i, double se)
+{
+    const double n = a[A_N(i)], mm = a[A_M(i)];
+    double t = -log(se) / mm, lx;        /* ln(1 + x) */
+    lx = t > 700.0 ? t + log(-expm1(-t)) : log(expm1(t));   /* ln x */
+    return lx / n - log(a[A_ALPHA(i)]);
+}
+
+static double clamp_s(double ls)
+{
+    if (ls > 709.0)
+        return DBL_MAX;
+    if (ls < -744.0)
+        return 4.9406564584124654e-324;
+    return exp(ls);
+}
+
+/* F = ln(Se(s)/target) and dF/dln s = -s dSe/dh / Se. */
+static double dur_residual(const double *a, double s, double target, double *dF)
+{
+    dur_sum q;
+    dur_sums(a, s, &q);
+    if (!(q.se > 0.0)) {
+        *dF = 0.0;
+        return -INFINITY;
+    }
+    *dF = -s * (q.dse / q.se);
+    return log1p((q.se - target) / target);
+}
+
+static double dur_suction(const psik_model *m, double se)
+{
+    const double *a = m->aux;
+    int i, nm = (int)a[A_NMODES], it;
+    double llo = INFINITY, lhi = -INFINITY, slo, shi, s, F, dF, Fprev = INFINITY;
+    int final = 0;
+    for (i = 0; i < nm; i++) {
+        double ls = mode_log_suction(a, i, se);
+        if (ls < llo) llo = ls;
+        if (ls > lhi) lhi = ls;
+    }
+    /* widen by a rounding margin; beyond the doubles: clamp */
+    slo = clamp_s(llo) * (1.0 - 1e-12);
+    shi = clamp_s(lhi) * (1.0 + 1e-12);
+    if (shi > DBL_MAX)
+        shi = DBL_MAX;
+    if (!(slo > 0.0))
+        slo = 4.9406564584124654e-324;
+    /* the root lies beyond the largest double: report infinity */
+    if (dur_se(m, shi) > se && shi == DBL_MAX)
+        return INFINITY;
+    s = exp(0.5 * (log(slo) + log(shi)));
+    for (it = 0; it < MAX_ITER; it++) {
+        double dt, snew;
+        F = dur_residual(a, s, se, &dF);
+        if (F == 0.0)
+            return s;
+        if (F > 0.0)            /* Se too large: the root is drier */
+            slo = s;
+        else
+            shi = s;
+        if (final)
+            break;
+        dt = dF < 0.0 ? -F / dF : NAN;
+        snew = s * exp(dt);
+        if (!(snew > slo && snew < shi) || !(fabs(F) <= 0.5 * fabs(Fprev))) {
+            /* bisection in ln s (unless Newton is already converging
+             * inside the bracket: accept small steps that stay inside) */
+            if (!(snew > slo && snew < shi) || fabs(dt) > 1e-3) {
+                snew = exp(0.5 * (log(slo) + log(shi)));
+                dt = log(snew / s);
+            }
+        }
+        Fprev = F;
+        if (snew == s)
+            break;
+        s = snew;
+        if (fabs(dt) < 0x1p-45)
+            final = 1;            /* one more Newton step reaches the noise level */
+        if (shi - slo <= 4.0 * DBL_EPSILON * slo)
+            break;
+    }
+    if (final && dF < 0.0) {
+        double dt = -F / dF, snew = s + s * expm1(dt);
+        if (snew >= slo && snew <= shi)
+            s = snew;
+    }
+    return s;
+}
+
+/* ------------------------------------------------------------ validation */
+
+static psik_status check_mode(const double *par, int ia, int in, int mode,
+                              char *msg, size_t cap)
+{
+    if (!(par[ia] > 0.0))
+        return psik__fail(msg, cap, PSIK_EDOMAIN,
+                          "alpha%d must be greater than 0 (got %g)", mode, par[ia]);
+    if (!(par[in] > 1.0))
+        return psik__fail(msg, cap, PSIK_EDOMAIN,
+                          "n%d must be greater than 1 (got %g)", mode, par[in]);
+    return PSIK_OK;
+}
+
+static psik_status check_weight(double w, const char *name, char *msg, size_t cap)
+{
+    if (!(w > 0.0 && w < 1.0))
+        return psik__fail(msg, cap, PSIK_EDOMAIN,
+                          "%s must be between 0 and 1, both excluded: it is the share "
+                          "of a pore system (got %g)", name, w);
+    return PSIK_OK;
+}
+
+/* l >= -2 keeps dKr/dh >= 0, for any number of modes. The closed form G
+ * is the Mualem ratio Gamma(Se) = I(Se)/I(1), I(S) = int_0^S dS'/s(S')
+ * (Priesack & Durner 2006), so dKr/dSe = Se^(L-1) Gamma (L Gamma +
+ * 2 Se Gamma'(Se)) with Gamma'(Se) = 1/(s(Se) I(1)). As s(S') >= s(Se)
+ * for S' <= Se, I(Se) <= Se/s(Se), i.e. Se Gamma'/Gamma >= 1: the bracket
+ * is >= (L + 2) Gamma >= 0 for L >= -2. (The dry end alone would allow
+ * down to -2/m of the mode with the smallest n; between modes the ratio
+ * can dip lower, and -2 is the bound that holds for every weight.) */
+static psik_status check_l(double L, char *msg, size_t cap)
+{
+    if (!(L >= -2.0))
+        return psik__fail(msg, cap, PSIK_EDOMAIN,
+                          "l must be at least -2 for the Durner model (otherwise K "
+                          "could decrease as the soil wets) (got %g)", L);
+    return PSIK_OK;
+}
+
+static psik_status d2_check(const double *par, char *msg, size_t cap)
+{
+    psik_status st;
+    if ((st = check_weight(par[2], "w1", msg, cap)) != PSIK_OK)
+        return st;
+    if ((st = check_mode(par, 3, 4, 1, msg, cap)) != PSIK_OK)
+        return st;
+    if ((st = check_mode(par, 5, 6, 2, msg, cap)) != PSIK_OK)
+        return st;
+    return check_l(par[8], msg, cap);
+}
+
+static psik_status d3_check(const double *par, char *msg, size_t cap)
+{
+    psik_status st;
+    if ((st = check_weight(par[2], "w1", msg, cap)) != PSIK_OK)
+        return st;
+    if ((st = check_weight(par[5], "w2", msg, cap)) != PSIK_OK)
+        return st;
+    if (!((1.0 - par[2]) - par[5] > 0.0))
+        return psik__fail(msg, cap, PSIK_EDOMAIN,
+                          "w1 + w2 must be less than 1: the third weight is "
+                          "1 - w1 - w2 and must be positive (got w1 = %g, w2 = %g)",
+                          par[2], par[5]);
+    if ((st = check_mode(par, 3, 4, 1, msg, cap)) != PSIK_OK)
+        return st;
+    if ((st = check_mode(par, 6, 7, 2, msg, cap)) != PSIK_OK)
+        return st;
+    if ((st = check_mode(par, 8, 9, 3, msg, cap)) != PSIK_OK)
+        return st;
+    return check_l(par[11], msg, cap);
+}
+
+static void set_mode(double *a, int i, double alpha, double n, double w)
+{
+    a[A_ALPHA(i)] = alpha;
+    a[A_N(i)] = n;
+    a[A_M(i)] = (n - 1.0) / n;
+    a[A_W(i)] = w;
+}
+
+static void finish_prepare(psik_model *m, int nm, double L)
+{
+    double *a = m->aux, sum = 0.0;
+    int i;
+    for (i = 0; i < nm; i++)
+        sum += a[A_W(i)] * a[A_ALPHA(i)];
+    a[A_L] = L;
+    a[A_INVSUM] = 1.0 / sum;
+    a[A_NMODES] = (double)nm;
+    m->h_sat = 0.0;
+}
+
+static void d2_prepare(psik_model *m)
+{
+    const double *p = m->par;
+    set_mode(m->aux, 0, p[3], p[4], p[2]);
+    set_mode(m->aux, 1, p[5], p[6], 1.0 - p[2]);
+    finish_prepare(m, 2, p[8]);
+}
+
+static void d3_prepare(psik_model *m)
+{
+    const double *p = m->par;
+    set_mode(m->aux, 0, p[3], p[4], p[2]);
+    set_mode(m->aux, 1, p[6], p[7], p[5]);
+    set_mode(m->aux, 2, p[8], p[9], (1.0 - p[2]) - p[5]);
+    finish_prepare(m, 3, p[11]);
+}
+
+static const psik_param_info d2_param[] = {
+    {"theta_r", 0.0, 0.5},
+    {"theta_s", 0.05, 1.0},
+    {"w1", 0.01, 0.99},
+    {"alpha1", 1e-5, 100.0},
+    {"n1", 1.001, 20.0},
+    {"alpha2", 1e-5, 100.0},
+    {"n2", 1.001, 20.0},
+    {"ks", 1e-6, 1e5},
+    {"l", -2.0, 10.0},
+};
+
+static const psik_param_info d3_param[] = {
+    {"theta_r", 0.0, 0.5},
+    {"theta_s", 0.05, 1.0},
+    {"w1", 0.01, 0.98},
+    {"alpha1", 1e-5, 100.0},
+    {"n1", 1.001, 20.0},
+    {"w2", 0.01, 0.98},
+    {"alpha2", 1e-5, 100.0},
+    {"n2", 1.001, 20.0},
+    {"alpha3", 1e-5, 100.0},
+    {"n3", 1.001, 20.0},
+    {"ks", 1e-6, 1e5},
+    {"l", -2.0, 10.0},
+};
+
+const psik_family psik__fam_durner2 = {
+    .kind = PSIK_DURNER2,
+    .name = "durner2",
+    .title = "Durner (1994) bimodal van Genuchten retention with Mualem conductivity "
+             "(Priesack & Durner 2006)",
+    .npar = 9,
+    .param = d2_param,
+    .ks_index = 7,
+    .check = d2_check,
+    .prepare = d2_prepare,
+    .point = dur_point,
+    .se = dur_se,
+    .kr = dur_kr,
+    .point_se = NULL,
+    .suction = dur_suction,
+};
+
+const psik_family psik__fam_durner3 = {
+    .kind = PSIK_DURNER3,
+    .name = "durner3",
+    .title = "Durner (1994) trimodal van Genuchten retention with Mualem conductivity "
+             "(Priesack & Durner 2006)",
+    .npar = 12,
+    .param = d3_param,
+    .ks_index = 10,
+    .check = d3_check,
+    .prepare = d3_prepare,
+    .point = dur_point,
+    .se = dur_se,
+    .kr = dur_kr,
+    .point_se = NULL,
+    .suction = dur_suction,
+};

@@ -1,0 +1,240 @@
+/* kosugi.c - the Kosugi (1996) lognormal retention model with Mualem (1976)
+ * conductivity: one row of the kinds table (kosugi).
+ *
+ * Notation: s = -h > 0 suction, s_m = -h_m the median suction, sigma the
+ * standard deviation of ln s, z = ln(s/s_m)/sigma, w = z + sigma,
+ * Q the upper tail of the standard normal distribution, phi its density,
+ * M = Q/phi the Mills ratio and H = 1/M the hazard function.
+ *   Se = Q(z),  Kr = Se^L Q(w)^2,  dSe/dh = phi(z)/(sigma s),
+ *   dKr/dh = Kr (L H(z) + 2 H(w)) / (sigma s).
+ *
+ * Method:
+ * - z is carried in two doubles: ln(s/s_m) from psik__log_ratio (absolute
+ *   error ~1e-16 whatever the size of s/s_m, no quotient formed), then the
+ *   division by sigma with its exact remainder. The tail and density take
+ *   the two parts (special.c), so no error grows like z^2 ~ |ln s|^2.
+ * - Kr = (Se^(L/2) Q(w))^2: Se^(L/2) <= 1/Se cannot overflow while Se is
+ *   normal, and the square root of Kr stays normal while Kr is. Where Se
+ *   or Q(w) leaves the normal range (z or w above 37) it is computed as
+ *   exp(E) with E = (L/2 + 1) ln Q(z) - (z sigma + sigma^2/2)
+ *   + ln(M(w)/M(z)), using Q(w)/Q(z) = exp(-(w^2 - z^2)/2) M(w)/M(z) and
+ *   z sigma = ln(s/s_m) in two parts: Kr keeps its digits where Se has
+ *   underflowed (L near -2 with small sigma gives Kr far above Se).
+ * - From Se (inverse, K(theta), D(theta)): z = Q^-1(Se) in two parts
+ *   (erfcinv, special.c, with erfcinv(2 - t) = -erfcinv(t) near Se = 1),
+ *   s = s_m exp(sigma z) with sigma z in two parts; then the formulas
+ *   above at that z, so no round trip through a rounded head.
+ * Error: measured against mpmath tables (tests/unit/test_accuracy.c).
+ */
+#include "psik_internal.h"
+
+#include <float.h>
+#include <math.h>
+
+#define P_HM  2
+#define P_SIG 3
+#define P_L   5
+
+#define A_SM   0   /* s_m = -h_m */
+#define A_SIG  1   /* sigma */
+#define A_L    2   /* l */
+#define A_HL   3   /* l / 2 */
+#define A_C_HI 4   /* l/2 + 1 in two parts */
+#define A_C_LO 5
+#define A_S2_HI 6  /* sigma^2 / 2 in two parts */
+#define A_S2_LO 7
+
+/* The normal range is left below Q(37.5) ~ 4.6e-308. */
+#define Z_FAR 37.0
+
+static void two_sum(double a, double b, double *s, double *e)
+{
+    double t = a + b, bb = t - a;
+    *s = t;
+    *e = (a - (t - bb)) + (b - bb);
+}
+
+/* Hazard phi/Q at v = vh + vl. */
+static double hazard(double vh, double vl)
+{
+    double q;
+    if (vh >= 5.0)
+        return 1.0 / psik__mills(vh, vl);
+    q = psik__normq(vh, vl);
+    return q > 0.0 ? psik__normpdf(vh, vl) / q : 0.0;
+}
+
+/* Everything at z = zh + zl, suction s, with se = Q(z) already known. */
+static void kos_core(const double *a, double zh, double zl, double s, double se,
+                     psik_point *out)
+{
+    const double sig = a[A_SIG], L = a[A_L];
+    double wh, wl, kr;
+    two_sum(zh, sig, &wh, &wl);
+    wl += zl;
+    out->se = se;
+    out->dse = psik__normpdf(zh, zl) / sig / s;
+    if (zh <= 0.0 || (wh <= Z_FAR && zh <= Z_FAR)) {
+        double r = pow(se, a[A_HL]) * psik__normq(wh, wl);
+        kr = r * r;
+    } else {
+        /* E = c ln Q(z) - (z sigma + sigma^2/2) + ln(M(w)/M(z)), c = L/2+1 */
+        double lq_hi, lq_lo, p, pl, e_hi, e_lo, t, u, mz, mw;
+        psik__lognormq(zh, zl, &lq_hi, &lq_lo);
+        p = zh * sig;
+        pl = fma(zh, sig, -p) + zl * sig;
+        e_hi = a[A_C_HI] * lq_hi;
+        e_lo = fma(a[A_C_HI], lq_hi, -e_hi) + a[A_C_HI] * lq_lo + a[A_C_LO] * lq_hi;
+        two_sum(e_hi, -p, &t, &u);
+        e_lo += u - pl - a[A_S2_HI] - a[A_S2_LO];
+        mz = psik__mills(zh, zl);
+        mw = psik__mills(wh, wl);
+        e_lo += log(mw / mz);
+        two_sum(t, e_lo, &e_hi, &u);
+        e_lo = u;
+        if (e_hi < -800.0) {
+            kr = 0.0;
+        } else {
+            double r = exp(e_hi) * (1.0 + e_lo);
+            kr = r * r;
+        }
+    }
+    out->kr = kr;
+    if (kr > 0.0)
+        out->dkr = kr * (L * hazard(zh, zl) + 2.0 * hazard(wh, wl)) / sig / s;
+    else
+        out->dkr = 0.0;
+}
+
+/* z = ln(s/s_m)/sigma in two parts; s finite > 0. */
+static void z_of_s(const double *a, double s, double *zh, double *zl)
+{
+    double lh, ll, q;
+    psik__log_ratio(s, a[A_SM], &lh, &ll);
+    q = lh / a[A_SIG];
+    *zh = q;
+    *zl = (fma(-q, a[A_SIG], lh) + ll) / a[A_SIG];
+}
+
+/* s = s_m exp(sigma z), sigma z in two parts. */
+static double s_of_z(const double *a, double zh, double zl)
+{
+    double e = zh * a[A_SIG];
+    double el = fma(zh, a[A_SIG], -e) + zl * a[A_SIG];
+    double t;
+    if (fabs(e) < 700.0) {
+        t = a[A_SM] * exp(e);
+        return t + t * el;
+    }
+    t = exp(0.5 * e);
+    t = (a[A_SM] * t) * t;
+    return t + t * el;
+}
+
+static void kos_point(const psik_model *m, double s, psik_point *out)
+{
+    double zh, zl;
+    if (isinf(s)) {
+        out->se = out->kr = out->dse = out->dkr = 0.0;
+        return;
+    }
+    z_of_s(m->aux, s, &zh, &zl);
+    kos_core(m->aux, zh, zl, s, psik__normq(zh, zl), out);
+}
+
+static double kos_se(const psik_model *m, double s)
+{
+    double zh, zl;
+    if (isinf(s))
+        return 0.0;
+    z_of_s(m->aux, s, &zh, &zl);
+    return psik__normq(zh, zl);
+}
+
+static double kos_kr(const psik_model *m, double s)
+{
+    psik_point out;
+    kos_point(m, s, &out);
+    return out.kr;
+}
+
+static void kos_point_se(const psik_model *m, double se, psik_point *out)
+{
+    double zh, zl, s;
+    psik__normq_inv(se, &zh, &zl);
+    s = s_of_z(m->aux, zh, zl);
+    if (!(s < INFINITY)) {
+        /* beyond the largest double: every value is below the smallest */
+        out->se = se;
+        out->kr = out->dse = out->dkr = 0.0;
+        return;
+    }
+    kos_core(m->aux, zh, zl, s, se, out);
+}
+
+static double kos_suction(const psik_model *m, double se)
+{
+    double zh, zl;
+    psik__normq_inv(se, &zh, &zl);
+    return s_of_z(m->aux, zh, zl);
+}
+
+static const psik_param_info kos_param[] = {
+    {"theta_r", 0.0, 0.5},
+    {"theta_s", 0.05, 1.0},
+    {"h_m", -1e5, -1e-2},
+    {"sigma", 0.05, 5.0},
+    {"ks", 1e-6, 1e5},
+    {"l", -2.0, 10.0},
+};
+
+/* l >= -2 keeps dKr/dh >= 0 for every sigma: dKr/dh has the sign of
+ * L H(z) + 2 H(z + sigma). The normal hazard H = phi/Q is positive and
+ * strictly increasing (the normal law is log-concave), so
+ * H(z + sigma)/H(z) > 1, and it tends to 1 as z -> +inf (H(z) ~ z).
+ * Hence the sum is >= 0 for all z iff -L <= 2 inf H(z+sigma)/H(z) = 2.
+ * (Then also Kr = Se^(L+2) (Q(w)/Q(z))^2 <= 1.) */
+static psik_status kos_check(const double *par, char *msg, size_t cap)
+{
+    if (!(par[P_HM] < 0.0))
+        return psik__fail(msg, cap, PSIK_EDOMAIN,
+                          "h_m must be negative: it is a pressure head (the median "
+                          "suction is -h_m) (got %g)", par[P_HM]);
+    if (!(par[P_SIG] > 0.0))
+        return psik__fail(msg, cap, PSIK_EDOMAIN,
+                          "sigma must be greater than 0 (got %g)", par[P_SIG]);
+    if (!(par[P_L] >= -2.0))
+        return psik__fail(msg, cap, PSIK_EDOMAIN,
+                          "l must be at least -2 for the Kosugi model (otherwise K "
+                          "would decrease as the soil wets) (got %g)", par[P_L]);
+    return PSIK_OK;
+}
+
+static void kos_prepare(psik_model *m)
+{
+    double *a = m->aux, sig = m->par[P_SIG], L = m->par[P_L];
+    a[A_SM] = -m->par[P_HM];
+    a[A_SIG] = sig;
+    a[A_L] = L;
+    a[A_HL] = 0.5 * L;
+    two_sum(0.5 * L, 1.0, &a[A_C_HI], &a[A_C_LO]);
+    a[A_S2_HI] = 0.5 * (sig * sig);
+    a[A_S2_LO] = 0.5 * fma(sig, sig, -(sig * sig));
+    m->h_sat = 0.0;
+}
+
+const psik_family psik__fam_kosugi = {
+    .kind = PSIK_KOSUGI,
+    .name = "kosugi",
+    .title = "Kosugi (1996) lognormal retention with Mualem (1976) conductivity",
+    .npar = 6,
+    .param = kos_param,
+    .ks_index = 4,
+    .check = kos_check,
+    .prepare = kos_prepare,
+    .point = kos_point,
+    .se = kos_se,
+    .kr = kos_kr,
+    .point_se = kos_point_se,
+    .suction = kos_suction,
+};
