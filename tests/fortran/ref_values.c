@@ -1,6 +1,7 @@
 /* ref_values.c - values from C for tests/fortran/test_binding.f90: for every
  * kind the library has, a parameter vector a quarter of the way through each
- * plausible range, then psik_* at a set of heads (%.17e round-trips doubles).
+ * plausible range, then psik_* at a set of heads (%.17e round-trips doubles):
+ * the single functions, psik_eval and psik_eval_batch (theta, k, C, dK/dh).
  * First line: psik_check's message for an invalid vgm vector. */
 #include <stdio.h>
 #include "psik.h"
@@ -11,6 +12,8 @@ int main(void)
                                     -15000.0, -1e6, 0.0 };
     const int nh = (int)(sizeof heads / sizeof heads[0]);
     const double bad[6] = { 0.078, 0.43, 0.036, 0.9, 24.96, 0.5 };
+    double bt[sizeof heads / sizeof heads[0]], bk[sizeof heads / sizeof heads[0]];
+    double bc[sizeof heads / sizeof heads[0]], bd[sizeof heads / sizeof heads[0]];
     char msg[512];
     int kind, i, j;
     psik_check(PSIK_VGM, bad, msg, sizeof msg);
@@ -32,12 +35,18 @@ int main(void)
         for (j = 0; j < np; j++)
             printf("%.17e\n", par[j]);
         printf("%d\n", nh);
+        psik_eval_batch(&m, (size_t)nh, heads, bt, bk, bc, bd);
         for (i = 0; i < nh; i++) {
             double h = heads[i], th = psik_theta(&m, h);
-            printf("%.17e %.17e %.17e %.17e %.17e %.17e %.17e %.17e %.17e %.17e\n", h,
+            psik_state st;
+            psik_eval(&m, h, &st);
+            printf("%.17e %.17e %.17e %.17e %.17e %.17e %.17e %.17e %.17e %.17e", h,
                    psik_se(&m, h), th, psik_kr(&m, h), psik_k(&m, h), psik_capacity(&m, h),
                    psik_dk_dh(&m, h), psik_head(&m, th), psik_k_theta(&m, th),
                    psik_diffusivity(&m, th));
+            printf(" %.17e %.17e %.17e %.17e %.17e %.17e", st.se, st.theta, st.kr, st.k,
+                   st.capacity, st.dk_dh);
+            printf(" %.17e %.17e %.17e %.17e\n", bt[i], bk[i], bc[i], bd[i]);
         }
     }
     return 0;

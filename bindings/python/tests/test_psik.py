@@ -6,7 +6,11 @@ Sources of expected values:
   * van Genuchten-Mualem closed forms evaluated with mpmath at 50 digits
     (Debian python3-mpmath), derivatives by mpmath.diff;
   * messages: the C library's psik_check, called directly through ctypes;
-  * everything else: exact agreement between the float, list and array paths.
+  * float, list and array paths: the list and array paths of theta, k,
+    capacity and dk_dh must equal a direct psik_eval_batch call bit for bit
+    (the batch fast path is the library's; its own tests bound it), and the
+    scalar functions within BATCH_REL (measured and printed); the others
+    must equal the scalar functions exactly.
 """
 import ctypes
 import math
@@ -45,6 +49,35 @@ def rel(a, b):
     if a == b:
         return 0.0
     return abs(a - b) / abs(b)
+
+
+BATCH_REL = 1e-14   # batch fast path vs scalar functions, relative
+
+
+def c_batch(m, name, hs):
+    """psik_eval_batch called directly through ctypes: one output."""
+    n = len(hs)
+    h = (ctypes.c_double * max(n, 1))(*hs)
+    out = (ctypes.c_double * max(n, 1))()
+    outs = [None, None, None, None]
+    outs[psik._BATCH[name]] = out
+    psik._c.psik_eval_batch(ctypes.byref(m.c_model), n, h, *outs)
+    return list(out)[:n]
+
+
+def expected(tc, m, name, hs):
+    """What the list/array path must give: the batch call for batch outputs
+    (checked to be within BATCH_REL of the scalar function), else the scalars."""
+    f = getattr(m, name)
+    scalars = [f(h) for h in hs]
+    if name not in psik._BATCH:
+        return scalars
+    b = c_batch(m, name, hs)
+    for x, y in zip(b, scalars):
+        e = rel(x, y) if y != 0 else abs(x)
+        note("batch vs scalar " + name, e)
+        tc.assertLessEqual(e, BATCH_REL, (name, x, y))
+    return b
 
 
 def quarter_point(kind):
@@ -205,18 +238,26 @@ class Semantics(unittest.TestCase):
             self.assertIsInstance(f(-10), float)
             lst = f(HEADS)
             self.assertIsInstance(lst, list)
-            self.assertEqual(lst, [f(h) for h in HEADS], name)
+            self.assertEqual(lst, expected(self, m, name, HEADS), name)
             self.assertEqual(f(tuple(HEADS)), lst)
             self.assertEqual(f([]), [])
         thetas = m.theta(HEADS)
         for name in ("head", "k_theta", "diffusivity"):
             f = getattr(m, name)
-            self.assertEqual(f(thetas), [f(t) for t in thetas])
+            self.assertEqual(f(thetas), expected(self, m, name, thetas))
         states = m.eval(HEADS)
         self.assertEqual(len(states), len(HEADS))
         for h, s in zip(HEADS, states):
             self.assertEqual(s, m.eval(h))
-            self.assertEqual(s.theta, m.theta(h))   # psik_eval = single functions
+            c = psik.PsikState()
+            psik._c.psik_eval(ctypes.byref(m.c_model), h, ctypes.byref(c))
+            self.assertEqual(tuple(s), (c.se, c.theta, c.kr, c.k, c.capacity, c.dk_dh))
+            # psik_eval shares terms between outputs: within BATCH_REL of the singles
+            for name in s._fields:
+                want = getattr(m, name)(h)
+                e = rel(getattr(s, name), want) if want != 0 else abs(getattr(s, name))
+                note("eval vs scalar " + name, e)
+                self.assertLessEqual(e, BATCH_REL, (name, h))
 
     def test_every_kind(self):
         for kind in psik.kinds():
@@ -228,7 +269,7 @@ class Semantics(unittest.TestCase):
                 self.assertTrue(tr <= t <= ts, (kind, h, t))
                 self.assertTrue(0.0 <= m.kr(h) <= 1.0)
                 self.assertGreaterEqual(m.capacity(h), 0.0)
-            self.assertEqual(m.k(HEADS), [m.k(h) for h in HEADS], kind)
+            self.assertEqual(m.k(HEADS), expected(self, m, "k", HEADS), kind)
 
     def test_without_numpy(self):
         if NO_NUMPY:
@@ -236,7 +277,7 @@ class Semantics(unittest.TestCase):
             with self.assertRaises(ImportError):
                 import numpy  # noqa: F401
         m = psik.Model("vgm", **LOAM)
-        self.assertEqual(m.theta(HEADS), [m.theta(h) for h in HEADS])
+        self.assertEqual(m.theta(HEADS), expected(self, m, "theta", HEADS))
 
 
 @unittest.skipIf(np is None, "NumPy hidden or missing")
@@ -249,23 +290,23 @@ class Arrays(unittest.TestCase):
             out = f(a)
             self.assertIsInstance(out, np.ndarray)
             self.assertEqual(out.dtype, np.float64)
-            self.assertEqual(out.tolist(), [f(h) for h in HEADS], name)
+            self.assertEqual(out.tolist(), expected(self, m, name, HEADS), name)
         t = m.theta(a)
         for name in ("head", "k_theta", "diffusivity"):
             f = getattr(m, name)
-            self.assertEqual(f(t).tolist(), [f(x) for x in t.tolist()], name)
+            self.assertEqual(f(t).tolist(), expected(self, m, name, t.tolist()), name)
 
     def test_shapes_strides_dtypes(self):
         m = psik.Model("vgm", **LOAM)
         a2 = np.array(HEADS[:8]).reshape(2, 4)
         out = m.k(a2)
         self.assertEqual(out.shape, (2, 4))
-        self.assertEqual(out.ravel().tolist(), [m.k(h) for h in HEADS[:8]])
+        self.assertEqual(out.ravel().tolist(), expected(self, m, "k", HEADS[:8]))
         strided = np.array(HEADS)[::2]
         self.assertFalse(strided.flags["C_CONTIGUOUS"])
-        self.assertEqual(m.capacity(strided).tolist(), [m.capacity(h) for h in HEADS[::2]])
+        self.assertEqual(m.capacity(strided).tolist(), expected(self, m, "capacity", HEADS[::2]))
         ints = np.array([-1, -10, -100])
-        self.assertEqual(m.theta(ints).tolist(), [m.theta(float(h)) for h in (-1, -10, -100)])
+        self.assertEqual(m.theta(ints).tolist(), expected(self, m, "theta", [-1.0, -10.0, -100.0]))
         self.assertEqual(m.theta(np.float64(-10.0)), m.theta(-10.0))
         self.assertEqual(m.theta(np.empty(0)).shape, (0,))
 
