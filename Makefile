@@ -107,6 +107,36 @@ single: $(SINGLE)
 $(SINGLE): tools/mksingle.py include/psik.h $(wildcard lib/*.h) $(LIB_SRC)
 	/usr/bin/python3 tools/mksingle.py -o $@
 
+# make install PREFIX=/usr/local DESTDIR=: headers (psik.h, psik_single.h),
+# libpsik.a, libpsik.so.$(SOVER) with its links, psik.pc, the Fortran module
+# source, and the psik tool when it is built.
+PREFIX     ?= /usr/local
+LIBDIR     ?= $(PREFIX)/lib
+INCLUDEDIR ?= $(PREFIX)/include
+BINDIR     ?= $(PREFIX)/bin
+DATADIR    ?= $(PREFIX)/share/psik
+PCDIR      ?= $(LIBDIR)/pkgconfig
+.PHONY: install uninstall
+install: all $(SINGLE)
+	sed -e 's|@PREFIX@|$(PREFIX)|' -e 's|@LIBDIR@|$(LIBDIR)|' -e 's|@INCLUDEDIR@|$(INCLUDEDIR)|' \
+	    -e 's|@VERSION@|$(VERSION)|' lib/psik.pc.in > $(B)/psik.pc
+	install -d '$(DESTDIR)$(INCLUDEDIR)' '$(DESTDIR)$(LIBDIR)' '$(DESTDIR)$(PCDIR)' '$(DESTDIR)$(DATADIR)/fortran'
+	install -m 644 include/psik.h $(SINGLE) '$(DESTDIR)$(INCLUDEDIR)/'
+	install -m 644 $(LIB_A) '$(DESTDIR)$(LIBDIR)/'
+	install -m 755 $(LIB_SOV) '$(DESTDIR)$(LIBDIR)/'
+	ln -sf libpsik.so.$(SOVER) '$(DESTDIR)$(LIBDIR)/libpsik.so.$(SOMAJOR)'
+	ln -sf libpsik.so.$(SOMAJOR) '$(DESTDIR)$(LIBDIR)/libpsik.so'
+	install -m 644 $(B)/psik.pc '$(DESTDIR)$(PCDIR)/'
+	install -m 644 bindings/fortran/psik.f90 '$(DESTDIR)$(DATADIR)/fortran/'
+	$(if $(CLI_SRC),install -d '$(DESTDIR)$(BINDIR)' && install -m 755 $(CLI_BIN) '$(DESTDIR)$(BINDIR)/')
+
+uninstall:
+	rm -f '$(DESTDIR)$(INCLUDEDIR)/psik.h' '$(DESTDIR)$(INCLUDEDIR)/psik_single.h' \
+	    '$(DESTDIR)$(LIBDIR)/libpsik.a' '$(DESTDIR)$(LIBDIR)/libpsik.so' \
+	    '$(DESTDIR)$(LIBDIR)/libpsik.so.$(SOMAJOR)' '$(DESTDIR)$(LIBDIR)/libpsik.so.$(SOVER)' \
+	    '$(DESTDIR)$(PCDIR)/psik.pc' '$(DESTDIR)$(DATADIR)/fortran/psik.f90' \
+	    $(if $(CLI_SRC),'$(DESTDIR)$(BINDIR)/psik')
+
 # ---------------------------------------------------------------- demo, docs
 demo: $(B)/bin/vg_demo
 	@$(B)/bin/vg_demo
