@@ -10,6 +10,11 @@ pass=0; fail=0
 tmp=$(mktemp -d); trap 'rm -rf "$tmp"' EXIT
 lib=$(cd "$B/lib" && pwd)/libpsik.so.1
 
+# C's offsetof/sizeof of every public struct, for the ctypes mirrors
+cc -std=c99 -Wall -Wextra -Wpedantic -Werror -Iinclude -o "$tmp/layout" tests/abi/layout.c \
+    && "$tmp/layout" > "$tmp/layout.txt" || { echo "FAIL tests/abi/layout.c"; fail=$((fail + 1)); }
+export PSIK_LAYOUT_FILE="$tmp/layout.txt"
+
 unit() {   # $1 = label, rest = extra args to run.py
     label=$1; shift
     PSIK_LIBRARY=$lib $PY bindings/python/tests/run.py "$@" > "$tmp/$label.log" 2>&1; st=$?

@@ -6,6 +6,8 @@
     >>> m.k([-1.0, -10.0])         # a sequence gives a list
     >>> m.capacity(numpy_array)    # an array gives an array (batch call, no copy
     ...                            # when it is C-contiguous float64)
+    >>> r = psik.fit("vgm", h, theta)   # weighted least squares (psik_fit)
+    >>> r.params, r.std_err, r.model.theta(-330.0)
 
 Keywords are the parameter names of the kind (psik.param_names(kind)); l
 defaults to 0.5 (Mualem 1976) where the kind has l. Invalid parameters raise
@@ -24,7 +26,7 @@ try:  # NumPy is optional
 except ImportError:  # pragma: no cover - exercised by the no-NumPy test run
     _np = None
 
-__all__ = ["Model", "State", "kinds", "kind_title", "param_names", "param_range",
+__all__ = ["Model", "State", "FitResult", "fit", "rank", "t_quantile", "kinds", "kind_title", "param_names", "param_range",
            "version", "strerror", "library_path", "OK", "EINVAL", "EDOMAIN", "ENOCONV",
            "EDATA", "ENOMEM", "EABI"]
 
@@ -332,3 +334,199 @@ class Model(object):
             return res
         _c.psik_eval(m, v, ctypes.byref(st))
         return State(st.se, st.theta, st.kr, st.k, st.capacity, st.dk_dh)
+
+
+# ---------------------------------------------------------------- fitting
+
+#: Per-parameter flag bits of a fit (psik_fit_result.flag).
+FIT_FREE, FIT_FIXED, FIT_AUTOFIXED, FIT_AT_LOWER, FIT_AT_UPPER, FIT_UNDEFINED = 0, 1, 2, 4, 8, 16
+_FLAG_NAMES = ((FIT_FIXED, "fixed"), (FIT_AUTOFIXED, "autofixed"), (FIT_AT_LOWER, "at_lower"),
+               (FIT_AT_UPPER, "at_upper"), (FIT_UNDEFINED, "undefined"))
+__all__ += ["FIT_FREE", "FIT_FIXED", "FIT_AUTOFIXED", "FIT_AT_LOWER", "FIT_AT_UPPER",
+            "FIT_UNDEFINED"]
+
+
+def _need_fit():
+    if not hasattr(_c, "psik_fit"):
+        raise RuntimeError("psik: the library at %s has no fitting (psik_fit)" % library_path())
+
+
+def _doubles(x, what):
+    """(pointer, keep-alive, n) for a float sequence or array (no copy for a
+    C-contiguous float64 array)."""
+    if _is_array(x):
+        a = _as_c_array(x).reshape(-1)
+        return _ptr(a), a, a.size
+    if isinstance(x, (str, bytes)):
+        raise TypeError("psik: %s must be numbers, got %r" % (what, x))
+    try:
+        vals = [float(v) for v in x]
+    except TypeError:
+        raise TypeError("psik: %s must be a sequence of numbers or an array" % what)
+    arr = (ctypes.c_double * max(len(vals), 1))(*vals)
+    return ctypes.cast(arr, _lib.c_double_p), arr, len(vals)
+
+
+class FitResult(object):
+    """The outcome of psik.fit(): estimates, errors, intervals and statistics.
+
+    params, std_err and flags are dicts by parameter name; ci maps a name to
+    (lo, hi); corr is the correlation matrix as a list of rows in parameter
+    order; the statistics (sse, sse_theta, sse_logk, rmse, r2, r2_logk, aic,
+    aicc, bic, t_value, confidence, n_obs, n_theta, n_k, n_free, dof,
+    iterations, starts, evaluations, stop) are attributes of the same names
+    as in C psik_fit_result; stop_reason and note are text.
+    """
+
+    _STATS = ("sse", "sse_theta", "sse_logk", "rmse", "r2", "r2_logk", "aic", "aicc", "bic",
+              "t_value", "confidence", "n_obs", "n_theta", "n_k", "n_free", "dof",
+              "iterations", "starts", "evaluations", "stop")
+
+    def __init__(self, res):
+        self.c_result = res
+        self.kind = res.kind
+        self.kind_name = _s(_c.psik_kind_name(res.kind))
+        self.names = param_names(res.kind)
+        n = res.npar
+        self.params = dict((nm, res.par[i]) for i, nm in enumerate(self.names))
+        self.std_err = dict((nm, res.std_err[i]) for i, nm in enumerate(self.names))
+        self.ci = dict((nm, (res.ci_lo[i], res.ci_hi[i])) for i, nm in enumerate(self.names))
+        self.flags = dict((nm, res.flag[i]) for i, nm in enumerate(self.names))
+        self.corr = [[res.corr[i][j] for j in range(n)] for i in range(n)]
+        for a in self._STATS:
+            setattr(self, a, getattr(res, a))
+        self.stop_reason = _s(_c.psik_fit_stop_name(res.stop))
+        self.note = res.note.decode("utf-8", "replace")
+
+    @property
+    def model(self):
+        """The fitted model (a psik.Model)."""
+        return Model(self.kind, [self.params[nm] for nm in self.names])
+
+    def flag_names(self, name):
+        """The flags of one parameter as words ("fixed", "at_lower", ...)."""
+        f = self.flags[name]
+        return [w for bit, w in _FLAG_NAMES if f & bit]
+
+    def __repr__(self):
+        return "<psik.FitResult %s sse=%.6g %s>" % (self.kind_name, self.sse, " ".join(
+            "%s=%.6g" % (nm, self.params[nm]) for nm in self.names))
+
+
+def fit(kind, h, theta, weights=None, k_h=None, k=None, k_weights=None, k_weight=None,
+        fixed=None, start=None, bounds=None, starts=None, samples=None, max_iter=None,
+        tol=None, confidence=None):
+    """Fit the parameters of a kind to retention data (and optionally
+    conductivity data) with the library's psik_fit (weighted least squares,
+    multi-start Levenberg-Marquardt; method and accuracy in psik.h).
+
+    h, theta: heads and water contents (sequences or arrays of equal length);
+    weights: per-point weights. k_h, k, k_weights: conductivity points;
+    k_weight: relative weight of the log10 K residuals. fixed: {name: value}
+    held; start: {name: start value}; bounds: {name: (lo, hi)} (None for the
+    kind's default on either side). starts, samples, max_iter, tol and
+    confidence override the psik_fit_defaults() values.
+    Unusable data or options raise ValueError with the library's sentence.
+    """
+    _need_fit()
+    kd = _kind(kind)
+    names = param_names(kd)
+    data = _lib.PsikFitData()
+    keep = []
+    ph, a, nh = _doubles(h, "h")
+    pt, b, nt = _doubles(theta, "theta")
+    keep += [a, b]
+    if nh != nt:
+        raise ValueError("h and theta differ in length (%d and %d)" % (nh, nt))
+    data.n_theta, data.h_theta, data.theta = nh, ph, pt
+    if weights is not None:
+        pw, c, nw = _doubles(weights, "weights")
+        keep.append(c)
+        if nw != nh:
+            raise ValueError("weights has %d values for %d retention points" % (nw, nh))
+        data.w_theta = pw
+    if (k_h is None) != (k is None):
+        raise ValueError("give both k_h and k (conductivity heads and values) or neither")
+    if k is not None:
+        pkh, c1, nkh = _doubles(k_h, "k_h")
+        pk, c2, nk = _doubles(k, "k")
+        keep += [c1, c2]
+        if nkh != nk:
+            raise ValueError("k_h and k differ in length (%d and %d)" % (nkh, nk))
+        data.n_k, data.h_k, data.k = nk, pkh, pk
+        if k_weights is not None:
+            pkw, c3, nkw = _doubles(k_weights, "k_weights")
+            keep.append(c3)
+            if nkw != nk:
+                raise ValueError("k_weights has %d values for %d conductivity points" % (nkw, nk))
+            data.w_k = pkw
+    data.k_weight = float("nan") if k_weight is None else float(k_weight)
+
+    opt = _lib.PsikFitOptions()
+    _c.psik_fit_defaults(ctypes.byref(opt))
+
+    def index(name, what):
+        if name not in names:
+            raise ValueError("%s: %s has no parameter %s; its parameters are: %s"
+                             % (what, _s(_c.psik_kind_name(kd)), name, " ".join(names)))
+        return names.index(name)
+
+    for name, val in (fixed or {}).items():
+        i = index(name, "fixed")
+        opt.fixed[i] = 1
+        opt.value[i] = float(val)
+    for name, val in (start or {}).items():
+        i = index(name, "start")
+        if opt.fixed[i]:
+            raise ValueError("%s is both fixed and given a start value" % name)
+        opt.value[i] = float(val)
+    for name, lohi in (bounds or {}).items():
+        i = index(name, "bounds")
+        lo, hi = lohi
+        if lo is not None:
+            opt.lo[i] = float(lo)
+        if hi is not None:
+            opt.hi[i] = float(hi)
+    for attr, val in (("starts", starts), ("samples", samples), ("max_iter", max_iter)):
+        if val is not None:
+            setattr(opt, attr, int(val))
+    if tol is not None:
+        opt.tol = float(tol)
+    if confidence is not None:
+        opt.confidence = float(confidence)
+
+    res = _lib.PsikFitResult()
+    msg = ctypes.create_string_buffer(_MSG_CAP)
+    st = _c.psik_fit(kd, ctypes.byref(data), ctypes.byref(opt), ctypes.byref(res), msg, _MSG_CAP)
+    text = _s(msg.value) or strerror(st)
+    if st == ENOMEM:
+        raise MemoryError("psik_fit: " + text)
+    if st == ENOCONV:
+        raise RuntimeError("psik_fit: " + text)
+    if st != OK:
+        raise ValueError(text)
+    return FitResult(res)
+
+
+def rank(results):
+    """Rank fits of several kinds to the same data by AICc (psik_fit_rank):
+    returns (order, weights): indices into results, best first, and the
+    Akaike weights in the order of results."""
+    _need_fit()
+    results = list(results)
+    n = len(results)
+    if n == 0:
+        raise ValueError("rank needs at least one fit")
+    arr = (_lib.PsikFitResult * n)(*[r.c_result for r in results])
+    order = (ctypes.c_size_t * n)()
+    w = (ctypes.c_double * n)()
+    st = _c.psik_fit_rank(arr, n, order, w)
+    if st != OK:
+        raise ValueError("rank: %s (fits to different data cannot be compared)" % strerror(st))
+    return list(order), list(w)
+
+
+def t_quantile(p, dof):
+    """Quantile of Student's t distribution (psik_t_quantile)."""
+    _need_fit()
+    return _c.psik_t_quantile(float(p), float(dof))

@@ -48,6 +48,77 @@ class PsikState(ctypes.Structure):
     ]
 
 
+class PsikFitData(ctypes.Structure):
+    """struct psik_fit_data."""
+    _fields_ = [
+        ("n_theta", ctypes.c_size_t),
+        ("h_theta", c_double_p),
+        ("theta", c_double_p),
+        ("w_theta", c_double_p),
+        ("n_k", ctypes.c_size_t),
+        ("h_k", c_double_p),
+        ("k", c_double_p),
+        ("w_k", c_double_p),
+        ("k_weight", ctypes.c_double),
+    ]
+
+
+class PsikFitOptions(ctypes.Structure):
+    """struct psik_fit_options (fill with psik_fit_defaults)."""
+    _fields_ = [
+        ("fixed", ctypes.c_int * MAX_PARAMS),
+        ("value", ctypes.c_double * MAX_PARAMS),
+        ("lo", ctypes.c_double * MAX_PARAMS),
+        ("hi", ctypes.c_double * MAX_PARAMS),
+        ("starts", ctypes.c_int),
+        ("samples", ctypes.c_int),
+        ("max_iter", ctypes.c_int),
+        ("tol", ctypes.c_double),
+        ("confidence", ctypes.c_double),
+    ]
+
+
+class PsikFitResult(ctypes.Structure):
+    """struct psik_fit_result (plain data)."""
+    _fields_ = [
+        ("kind", ctypes.c_int),
+        ("npar", ctypes.c_int),
+        ("par", ctypes.c_double * MAX_PARAMS),
+        ("std_err", ctypes.c_double * MAX_PARAMS),
+        ("ci_lo", ctypes.c_double * MAX_PARAMS),
+        ("ci_hi", ctypes.c_double * MAX_PARAMS),
+        ("flag", ctypes.c_int * MAX_PARAMS),
+        ("corr", (ctypes.c_double * MAX_PARAMS) * MAX_PARAMS),
+        ("sse", ctypes.c_double),
+        ("sse_theta", ctypes.c_double),
+        ("sse_logk", ctypes.c_double),
+        ("rmse", ctypes.c_double),
+        ("r2", ctypes.c_double),
+        ("r2_logk", ctypes.c_double),
+        ("aic", ctypes.c_double),
+        ("aicc", ctypes.c_double),
+        ("bic", ctypes.c_double),
+        ("t_value", ctypes.c_double),
+        ("confidence", ctypes.c_double),
+        ("n_obs", ctypes.c_int),
+        ("n_theta", ctypes.c_int),
+        ("n_k", ctypes.c_int),
+        ("n_free", ctypes.c_int),
+        ("dof", ctypes.c_int),
+        ("iterations", ctypes.c_int),
+        ("starts", ctypes.c_int),
+        ("evaluations", ctypes.c_int),
+        ("stop", ctypes.c_int),
+        ("note", ctypes.c_char * 512),
+    ]
+
+
+#: ctypes mirror of each public struct, by C name (checked by the tests
+#: field by field against tests/abi/layout.c).
+STRUCTS = {"psik_model": PsikModel, "psik_state": PsikState, "psik_fit_data": PsikFitData,
+           "psik_fit_options": PsikFitOptions, "psik_fit_result": PsikFitResult}
+
+
 def _candidates():
     env = os.environ.get("PSIK_LIBRARY")
     if env:
@@ -114,6 +185,17 @@ def _declare(lib):
     _fn(lib, "psik_eval", None, [M, d, ctypes.POINTER(PsikState)])
     _fn(lib, "psik_eval_batch", None,
         [M, ctypes.c_size_t, c_double_p, c_double_p, c_double_p, c_double_p, c_double_p])
+    # fitting (present from library 0.1.0 on; absent in older builds)
+    if hasattr(lib, "psik_fit"):
+        _fn(lib, "psik_fit_defaults", None, [ctypes.POINTER(PsikFitOptions)])
+        _fn(lib, "psik_fit", i, [i, ctypes.POINTER(PsikFitData), ctypes.POINTER(PsikFitOptions),
+                                 ctypes.POINTER(PsikFitResult), ctypes.c_char_p, ctypes.c_size_t])
+        _fn(lib, "psik_fit_stop_name", cp, [i])
+        _fn(lib, "psik_t_quantile", d, [d, d])
+        _fn(lib, "psik_fit_rank", i, [ctypes.POINTER(PsikFitResult), ctypes.c_size_t,
+                                      ctypes.POINTER(ctypes.c_size_t), c_double_p])
+        _fn(lib, "psik_fit_jacobian", i, [i, ctypes.POINTER(PsikFitData), c_double_p, i,
+                                          c_double_p])
 
 
 def check_layout():

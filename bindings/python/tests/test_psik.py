@@ -116,6 +116,25 @@ class Layout(unittest.TestCase):
         self.assertEqual(bytes(m), b"\xa5" * 304)
 
 
+    @unittest.skipIf(not os.environ.get("PSIK_LAYOUT_FILE"), "PSIK_LAYOUT_FILE not set "
+                     "(tests/suites/python.sh writes it with tests/abi/layout.c)")
+    def test_every_struct_matches_c(self):
+        """Field offsets and sizes of every ctypes mirror = C's offsetof/sizeof."""
+        seen = 0
+        with open(os.environ["PSIK_LAYOUT_FILE"]) as fh:
+            for line in fh:
+                struct, field, off, size = line.split()
+                cls = _lib.STRUCTS[struct]
+                if field == "-":
+                    self.assertEqual(ctypes.sizeof(cls), int(off), struct)
+                else:
+                    self.assertEqual(getattr(cls, field).offset, int(off), (struct, field))
+                    self.assertEqual(getattr(cls, field).size, int(size), (struct, field))
+                seen += 1
+        print("\n# %d struct/field layouts equal C's (%s)" % (seen, ", ".join(sorted(_lib.STRUCTS))))
+        self.assertGreater(seen, 60)
+
+
 class Construction(unittest.TestCase):
     def test_keywords_and_default_l(self):
         m = psik.Model("vgm", **LOAM)
@@ -323,6 +342,109 @@ class Arrays(unittest.TestCase):
         self.assertIsInstance(st, psik.State)
         for i, h in enumerate(HEADS):
             self.assertEqual(tuple(float(x[i]) for x in st), tuple(m.eval(h)))
+
+
+FIT_HEADS = [-1.0, -3.0, -10.0, -20.0, -33.0, -60.0, -100.0, -200.0, -330.0, -1000.0,
+             -3000.0, -15000.0]
+
+
+class Fitting(unittest.TestCase):
+    """psik.fit on noise-free data made by the library from known parameters
+    (recovery of the generating parameters is the check: common practice)."""
+
+    def setUp(self):
+        self.m = psik.Model("vgm", **LOAM)
+        self.theta = self.m.theta(FIT_HEADS)
+
+    def test_recovers_retention_parameters(self):
+        r = psik.fit("vgm", FIT_HEADS, self.theta)
+        worst = max(rel(r.params[nm], LOAM[nm]) for nm in ("theta_r", "theta_s", "alpha", "n"))
+        print("\n# noise-free vgm retention fit: largest parameter error %.3g, sse %.3g"
+              % (worst, r.sse))
+        self.assertLess(worst, 1e-7)
+        self.assertLess(r.sse, 1e-20)
+        self.assertEqual(r.n_theta, len(FIT_HEADS))
+        self.assertEqual(r.n_k, 0)
+        self.assertEqual(r.kind_name, "vgm")
+        # without conductivity data ks and l are held, and the note says so
+        self.assertIn("autofixed", r.flag_names("ks"))
+        self.assertIn("autofixed", r.flag_names("l"))
+        self.assertIn("ks", r.note)
+        self.assertEqual(r.n_free, 4)
+        self.assertTrue(r.stop_reason)
+        m2 = r.model
+        self.assertIsInstance(m2, psik.Model)
+        self.assertEqual(m2.params, r.params)
+        self.assertEqual(len(r.corr), 6)
+
+    def test_with_conductivity(self):
+        kh = [-1.0, -10.0, -30.0, -100.0, -300.0, -1000.0]
+        r = psik.fit("vgm", FIT_HEADS, self.theta, k_h=kh, k=self.m.k(kh))
+        worst = max(rel(r.params[nm], LOAM.get(nm, 0.5)) for nm in psik.param_names("vgm"))
+        print("\n# noise-free vgm fit with K data: largest parameter error %.3g" % worst)
+        self.assertLess(worst, 1e-6)
+        self.assertEqual(r.n_k, len(kh))
+        self.assertEqual(r.n_free, 6)
+
+    def test_fixed_start_bounds(self):
+        r = psik.fit("vgm", FIT_HEADS, self.theta, fixed={"theta_r": 0.05},
+                     start={"n": 1.5}, bounds={"alpha": (0.001, None)}, starts=2)
+        self.assertEqual(r.params["theta_r"], 0.05)
+        self.assertIn("fixed", r.flag_names("theta_r"))
+        self.assertEqual(r.std_err["theta_r"], 0.0)
+        self.assertGreater(r.sse, 0.0)      # theta_r held off its true value
+        self.assertGreaterEqual(r.params["alpha"], 0.001)
+        lo, hi = r.ci["alpha"]
+        self.assertTrue(lo <= r.params["alpha"] <= hi)
+
+    def test_bad_data_messages(self):
+        bad = list(self.theta)
+        bad[0] = float("nan")
+        with self.assertRaises(ValueError) as cm:
+            psik.fit("vgm", FIT_HEADS, bad)
+        self.assertIn("retention point 1", str(cm.exception))
+        with self.assertRaisesRegex(ValueError, "differ in length"):
+            psik.fit("vgm", FIT_HEADS, self.theta[:-1])
+        with self.assertRaisesRegex(ValueError, "has no parameter alfa"):
+            psik.fit("vgm", FIT_HEADS, self.theta, fixed={"alfa": 0.1})
+        with self.assertRaisesRegex(ValueError, "both k_h and k"):
+            psik.fit("vgm", FIT_HEADS, self.theta, k=[1.0])
+        with self.assertRaisesRegex(ValueError, "weights has 2 values"):
+            psik.fit("vgm", FIT_HEADS, self.theta, weights=[1.0, 1.0])
+
+    def test_rank(self):
+        r1 = psik.fit("vgm", FIT_HEADS, self.theta, starts=2)
+        r2 = psik.fit("gardner" if "gardner" in psik.kinds() else "vgb", FIT_HEADS, self.theta,
+                      starts=2)
+        order, w = psik.rank([r2, r1])
+        self.assertEqual(order[0], 1)                 # the generating kind wins
+        self.assertAlmostEqual(sum(w), 1.0, places=12)
+        self.assertGreater(w[1], w[0])
+
+    @unittest.skipIf(mpmath is None, "mpmath missing")
+    def test_t_quantile_vs_mpmath(self):
+        worst = 0.0
+        for p, d in ((0.975, 10.0), (0.995, 3.5), (0.6, 1e4), (0.05, 7.0)):
+            mp = mpmath.mp
+            mp.dps = 40
+            pd, dd = mpmath.mpf(p), mpmath.mpf(d)
+
+            def cdf_minus_p(t):
+                tail = mpmath.betainc(dd / 2, mpmath.mpf(1) / 2, 0, dd / (dd + t * t),
+                                      regularized=True) / 2
+                return (1 - tail if t > 0 else tail) - pd
+            want = float(mpmath.findroot(cdf_minus_p, 1.0 if p > 0.5 else -1.0))
+            e = rel(psik.t_quantile(p, d), want)
+            worst = max(worst, e)
+            self.assertLess(e, 1e-12, (p, d))
+        print("\n# t quantile vs mpmath (40 digits): largest relative error %.3g" % worst)
+
+    @unittest.skipIf(np is None, "NumPy hidden or missing")
+    def test_arrays_equal_lists(self):
+        a = psik.fit("vgm", FIT_HEADS, self.theta, starts=2)
+        b = psik.fit("vgm", np.array(FIT_HEADS), np.array(self.theta), starts=2)
+        self.assertEqual(a.params, b.params)
+        self.assertEqual(a.sse, b.sse)
 
 
 class Loading(unittest.TestCase):
