@@ -50,6 +50,13 @@ $(B)/obj/%.o: lib/%.c include/psik.h lib/psik_internal.h
 	@mkdir -p $(dir $@)
 	$(CC) $(CFLAGS_LIB) -c $< -o $@
 
+# Vectorised kernels (lib/batch_*.c, lib/table.c): the loop vectoriser on,
+# no errno from sqrt, and no contraction into fused multiply-adds, so the
+# scalar, SSE2, AVX2 and AVX-512 paths give the same bits (no -ffast-math).
+FAST_OBJ := $(filter $(B)/obj/batch_%.o $(B)/obj/table.o,$(LIB_OBJ))
+$(FAST_OBJ): CFLAGS_LIB += -O3 -fno-math-errno -ffp-contract=off
+$(FAST_OBJ): lib/fastmath.h lib/fast_vg.h
+
 $(LIB_A): $(LIB_OBJ)
 	@mkdir -p $(dir $@)
 	rm -f $@

@@ -13,6 +13,8 @@
  * pow-like products c * log(p) need: their error in Se must not grow with
  * |log p|.
  *
+ * Selects between computed values go through psik__fm_sel (an operation
+ * inside a ?: arm could trap, so the compiler would keep the branch).
  * Arithmetic is plain IEEE double with no contraction into fused
  * multiply-adds (the kernels that include this file are compiled with
  * -ffp-contract=off, and clang obeys the pragma below), so a vectorised
@@ -48,6 +50,15 @@ PSIK_FM double psik__fm_double(uint64_t u)
     double x;
     memcpy(&x, &u, sizeof x);
     return x;
+}
+
+/* c ? a : b through the bits: both operands are computed on every path, so
+ * the compiler cannot sink an operation into a branch (which it would keep,
+ * since the operation could trap) and the loop stays vectorisable. */
+PSIK_FM double psik__fm_sel(int c, double a, double b)
+{
+    uint64_t m = (uint64_t)0 - (uint64_t)(c != 0);
+    return psik__fm_double((psik__fm_bits(a) & m) | (psik__fm_bits(b) & ~m));
 }
 
 /* s + e = a + b exactly (Knuth). */
@@ -93,10 +104,10 @@ PSIK_FM void psik__fm_mul_dd(double c, double xh, double xl, double *ph, double 
 PSIK_FM void psik__fm_exp_core(double x, double lo, double *rh, double *ql, double *s1,
                                double *s2, double *kd)
 {
-    double xc = x > 710.0 ? 710.0 : x;
+    double xc = psik__fm_sel(x > 710.0, 710.0, x);
     double sh, k, r0, c, r, rl, p;
     uint64_t ku, k1, k2;
-    xc = xc < -746.0 ? -746.0 : xc;
+    xc = psik__fm_sel(xc < -746.0, -746.0, xc);
     sh = xc * PSIK_FM_INVLN2 + PSIK_FM_SHIFT;
     ku = psik__fm_bits(sh) - psik__fm_bits(PSIK_FM_SHIFT) + 2048u;   /* k + 2048 */
     k = sh - PSIK_FM_SHIFT;
@@ -104,18 +115,17 @@ PSIK_FM void psik__fm_exp_core(double x, double lo, double *rh, double *ql, doub
     c = k * PSIK_FM_LN2LO;
     psik__fm_two_sum(r0, -c, &r, &rl);
     rl = rl + lo;
-    p = 1.0 / 6227020800.0;                   /* 1/13! */
-    p = p * r + 1.0 / 479001600.0;            /* 1/12! */
-    p = p * r + 1.0 / 39916800.0;             /* 1/11! */
-    p = p * r + 1.0 / 3628800.0;              /* 1/10! */
-    p = p * r + 1.0 / 362880.0;               /* 1/9! */
-    p = p * r + 1.0 / 40320.0;                /* 1/8! */
-    p = p * r + 1.0 / 5040.0;                 /* 1/7! */
-    p = p * r + 1.0 / 720.0;                  /* 1/6! */
-    p = p * r + 1.0 / 120.0;                  /* 1/5! */
-    p = p * r + 1.0 / 24.0;                   /* 1/4! */
-    p = p * r + 1.0 / 6.0;                    /* 1/3! */
-    p = p * r + 0.5;
+    {   /* P(r) = sum 1/(j+2)! r^j, j = 0..11, Estrin's scheme (short chains) */
+        double r2 = r * r, r4 = r2 * r2, r8 = r4 * r4;
+        double p01 = 0.5 + r * (1.0 / 6.0);
+        double p23 = 1.0 / 24.0 + r * (1.0 / 120.0);
+        double p45 = 1.0 / 720.0 + r * (1.0 / 5040.0);
+        double p67 = 1.0 / 40320.0 + r * (1.0 / 362880.0);
+        double p89 = 1.0 / 3628800.0 + r * (1.0 / 39916800.0);
+        double pab = 1.0 / 479001600.0 + r * (1.0 / 6227020800.0);
+        double q0 = p01 + r2 * p23, q1 = p45 + r2 * p67, q2 = p89 + r2 * pab;
+        p = (q0 + r4 * q1) + r8 * q2;
+    }
     /* e^(r + rl) - 1 = r + [(r^2) p + rl (1 + r)] */
     *rh = r;
     *ql = (r * r) * p + rl * (1.0 + r);
@@ -152,7 +162,7 @@ PSIK_FM void psik__fm_exp_expm1_dd(double x, double lo, double *e, double *em1)
     two_k = s1 * s2;
     em = ((two_k - 1.0) + two_k * r) + two_k * ql;
     *e = ex;
-    *em1 = k > 60.0 ? ex : em;      /* large k: exp overflows or swamps the 1 */
+    *em1 = psik__fm_sel(k > 60.0, ex, em);      /* large k: exp overflows or swamps the 1 */
 }
 
 /* expm1(x): error < 2 ulp; -1 below -37.5, +inf above 709.8, NaN for NaN. */
@@ -160,21 +170,21 @@ PSIK_FM double psik__fm_expm1(double x)
 {
     double e, em1;
     psik__fm_exp_expm1_dd(x, 0.0, &e, &em1);
-    return x == 0.0 ? x : em1;       /* keeps the sign of -0 */
+    return psik__fm_sel(x == 0.0, x, em1);       /* keeps the sign of -0 */
 }
 
 /* log(x) as hi + lo for finite x > 0 (normal or subnormal), absolute error
  * below 2^-58 (and relative below 2^-58 when 0.707 < x < 1.414).
  * Method: x = 2^k z with z in [sqrt(2)/2, sqrt(2)) from the bits,
  * f = z - 1 (exact), s = f / (2 + f) carried as sh + sl,
- * log z = 2 atanh s = 2s + 2 s^3 (1/3 + s^2/5 + ... + s^20/23) with
- * |s| <= 0.1716 (truncation below 2^-62), and k ln 2 in two parts.
+ * log z = 2 atanh s = 2s + 2 s^3 (1/3 + s^2/5 + ... + s^18/21) with
+ * |s| <= 0.1716 (truncation below 2^-61), and k ln 2 in two parts.
  * Zero, negative, infinite and NaN x give garbage: callers select. */
 PSIK_FM double psik__fm_log_dd(double x, double *lo)
 {
     int sub = x < DBL_MIN;
-    double xs = sub ? x * 18014398509481984.0 : x;       /* 2^54 */
-    double koff = sub ? 54.0 : 0.0;
+    double xs = psik__fm_sel(sub, x * 18014398509481984.0, x);    /* 2^54 */
+    double koff = psik__fm_sel(sub, 54.0, 0.0);
     uint64_t ix = psik__fm_bits(xs);
     uint64_t tmp = ix - 0x3fe6a09e667f3bcdULL + 0x8000000000000000ULL;
     uint64_t kk = tmp >> 52;                              /* k + 2048 */
@@ -188,17 +198,15 @@ PSIK_FM double psik__fm_log_dd(double x, double *lo)
     psik__fm_two_prod(sh, dh, &ph, &pl);
     sl = (((f - ph) - pl) - sh * dl) / dh;
     s2 = sh * sh;
-    P = 1.0 / 23.0;
-    P = P * s2 + 1.0 / 21.0;
-    P = P * s2 + 1.0 / 19.0;
-    P = P * s2 + 1.0 / 17.0;
-    P = P * s2 + 1.0 / 15.0;
-    P = P * s2 + 1.0 / 13.0;
-    P = P * s2 + 1.0 / 11.0;
-    P = P * s2 + 1.0 / 9.0;
-    P = P * s2 + 1.0 / 7.0;
-    P = P * s2 + 1.0 / 5.0;
-    P = P * s2 + 1.0 / 3.0;
+    {   /* P = sum s2^j / (2j + 3), j = 0..9, Estrin's scheme */
+        double z2 = s2 * s2, z4 = z2 * z2, z8 = z4 * z4;
+        double p01 = 1.0 / 3.0 + s2 * (1.0 / 5.0);
+        double p23 = 1.0 / 7.0 + s2 * (1.0 / 9.0);
+        double p45 = 1.0 / 11.0 + s2 * (1.0 / 13.0);
+        double p67 = 1.0 / 15.0 + s2 * (1.0 / 17.0);
+        double p89 = 1.0 / 19.0 + s2 * (1.0 / 21.0);
+        P = ((p01 + z2 * p23) + z4 * (p45 + z2 * p67)) + z8 * p89;
+    }
     T = 2.0 * sh * s2 * P;
     psik__fm_two_sum(k * PSIK_FM_LN2HI, 2.0 * sh, &H, &e1);
     l = e1 + (k * PSIK_FM_LN2LO + (2.0 * sl + T));
@@ -211,9 +219,9 @@ PSIK_FM double psik__fm_log_dd(double x, double *lo)
 PSIK_FM double psik__fm_log(double x)
 {
     double lo, v = psik__fm_log_dd(x, &lo);
-    v = x == 0.0 ? -HUGE_VAL : v;
-    v = x > DBL_MAX ? x : v;
-    return x >= 0.0 ? v : NAN;
+    v = psik__fm_sel(x == 0.0, -HUGE_VAL, v);
+    v = psik__fm_sel(x > DBL_MAX, x, v);
+    return psik__fm_sel(x >= 0.0, v, NAN);
 }
 
 /* log1p(x) for x > -1, finite: log(u) + e/u with u = fl(1 + x) and e the
@@ -221,7 +229,8 @@ PSIK_FM double psik__fm_log(double x)
 PSIK_FM double psik__fm_log1p_fin(double x)
 {
     double u = 1.0 + x, lo, hi;
-    double e = x >= 1.0 ? 1.0 - (u - x) : x - (u - 1.0);
+    double e1 = 1.0 - (u - x), e0 = x - (u - 1.0);
+    double e = psik__fm_sel(x >= 1.0, e1, e0);
     hi = psik__fm_log_dd(u, &lo);
     return hi + (lo + e / u);
 }
@@ -230,10 +239,10 @@ PSIK_FM double psik__fm_log1p_fin(double x)
 PSIK_FM double psik__fm_log1p(double x)
 {
     double v = psik__fm_log1p_fin(x);
-    v = x == -1.0 ? -HUGE_VAL : v;
-    v = x > DBL_MAX ? x : v;
-    v = x == 0.0 ? x : v;            /* keeps -0 */
-    return x >= -1.0 ? v : NAN;
+    v = psik__fm_sel(x == -1.0, -HUGE_VAL, v);
+    v = psik__fm_sel(x > DBL_MAX, x, v);
+    v = psik__fm_sel(x == 0.0, x, v);            /* keeps -0 */
+    return psik__fm_sel(x >= -1.0, v, NAN);
 }
 
 #endif

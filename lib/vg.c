@@ -24,6 +24,7 @@
  * Error: see README.md (measured against mpmath, 600 digits).
  */
 #include "psik_internal.h"
+#include "fast_vg.h"
 
 #include <float.h>
 #include <math.h>
@@ -259,11 +260,39 @@ static void vgm_fill(const double *a, const vg_pt *q, psik_point *out)
     mualem_out(q->se, a[A_L], q->g, q->dls, q->dg, out);
 }
 
+/* Constants of the fused point and batch kernels (batch_vg.c). */
+static psik_vgc vg_coef(const psik_model *m, int model)
+{
+    const double *a = m->aux;
+    psik_vgc c;
+    c.alpha = a[A_ALPHA];
+    c.n = a[A_N];
+    c.m = a[A_M];
+    c.k = a[A_K];
+    c.l = model == PSIK_VGC_BURDINE ? 0.5 : a[A_L];
+    c.sc = model == PSIK_VGC_MUALEM_AE ? a[A_SC] : 1.0;
+    c.ge = model == PSIK_VGC_MUALEM_AE ? a[A_GE] : 1.0;
+    c.xe = model == PSIK_VGC_MUALEM_AE ? a[A_XE] : 0.0;
+    c.model = model;
+    return c;
+}
+
+/* The fused point where it applies (all realistic heads), else vg_from_s. */
 static void vgm_point(const psik_model *m, double s, psik_point *out)
 {
     vg_pt q;
+    psik_vgc c = vg_coef(m, PSIK_VGC_MUALEM);
+    if (psik__vg_point_fast(&c, s, out))
+        return;
     vg_from_s(m->aux, s, &q);
     vgm_fill(m->aux, &q, out);
+}
+
+static void vgm_batch(const psik_model *m, size_t count, const double *h,
+                      double *theta, double *k, double *capacity, double *dk_dh)
+{
+    psik_vgc c = vg_coef(m, PSIK_VGC_MUALEM);
+    psik__vg_batch(m, &c, count, h, theta, k, capacity, dk_dh);
 }
 
 static void vgm_point_se(const psik_model *m, double se, psik_point *out)
@@ -318,6 +347,7 @@ const psik_family psik__fam_vgm = {
     .kr = vgm_kr,
     .point_se = vgm_point_se,
     .suction = vg_suction,
+    .batch = vgm_batch,
 };
 
 /* ---------------------------------------------------------------- vgm_ae */

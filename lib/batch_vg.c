@@ -1,0 +1,273 @@
+/* batch_vg.c - fused and vectorised van Genuchten evaluation (vgm, vgm_ae,
+ * vgb): the point that psik_eval uses, and the psik_eval_batch kernels.
+ *
+ * Method. With p = alpha s and lp = log p carried in two doubles
+ * (fastmath.h), t = n lp, a = exp(-|t|) (x on the wet side p <= 1, 1/x on
+ * the dry side) and b = log1p(a):
+ *   ln Se  = -m b            (wet)      -k lp - m b   (dry)
+ *   ln y^m = k lp - m b      (wet)      -m b          (dry)
+ * with k = m n exact, each exponent formed in double-double, so that
+ * Se = exp(ln Se), y^m and g = 1 - y^m = -expm1(ln y^m) (one shared
+ * reduction) keep a few ulp at both ends, exactly as the pow-based forms in
+ * vg.c do; Se^l is sqrt(Se) for l = 1/2 (the usual value) and exp(l ln Se)
+ * otherwise. Then dlnSe/dh = k alpha y / p and dg/dh = k alpha y^m r / p
+ * with y = x/(1+x), r = 1/(1+x) from a. Transcendentals per point: two
+ * logs and three exps (four for l != 1/2); vgm_ae adds one log1p and one
+ * exp for the entry-corrected Se.
+ *
+ * Special cases without breaking the vector loop: every lane is computed
+ * branch-free; lanes at or above h_sat, NaN, infinite, or outside the
+ * core's range |t| <= 700 (heads 1e300 times beyond any soil's) are
+ * flagged and recomputed afterwards by psik_eval, so they get exactly the
+ * scalar path's values. The clamps are eval.c's, as selects.
+ *
+ * Instruction sets: the block loop is compiled three times on x86-64
+ * (baseline SSE2, AVX2, AVX-512F) and chosen per call with
+ * __builtin_cpu_supports, which also checks that the OS saves the wide
+ * registers; other targets and compilers get the baseline loop. No fused
+ * multiply-adds are formed (-ffp-contract=off, pragma for clang), so the
+ * three give identical bits, equal to psik_eval's.
+ */
+#include "fast_vg.h"
+#include "fastmath.h"
+
+#include <float.h>
+#include <math.h>
+
+#if defined(__x86_64__) && defined(__GNUC__) && !defined(PSIK_NO_DISPATCH) && \
+    !defined(PSIK_SINGLE)
+#  define PSIK_VG_DISPATCH 1
+#else
+#  define PSIK_VG_DISPATCH 0
+#endif
+
+#define BLK 256
+
+/* eval.c's clamps, as selects. */
+PSIK_FM double vc_pos(double v)
+{
+    v = psik__fm_sel(v >= 0.0, v, 0.0);
+    return psik__fm_sel(v > DBL_MAX, DBL_MAX, v);
+}
+
+PSIK_FM double vc_01(double v)
+{
+    v = psik__fm_sel(v > 0.0, v, 0.0);
+    return psik__fm_sel(v > 1.0, 1.0, v);
+}
+
+/* The fused point. half: l == 1/2 (a constant after inlining). Returns
+ * the "in range" flag; the values are garbage where it is 0. */
+PSIK_FM int vg_core(const psik_vgc *c, double s, int half, int model,
+                    double *se_o, double *kr_o, double *dse_o, double *dkr_o)
+{
+    const double n = c->n, m = c->m, k = c->k, ka = c->k * c->alpha;
+    double p = c->alpha * s;
+    double lph, lpl, th, tl, a, b, kh, kl, mb, e1h, e1l, e2h, e2l, t1, t2;
+    double S, ym, em1, g, inv, y, r, invp, dls, dg, se, seL, G, dG, kr, dkr;
+    int wet, ok;
+    lph = psik__fm_log_dd(p, &lpl);
+    psik__fm_mul_dd(n, lph, lpl, &th, &tl);
+    wet = th <= 0.0;
+    t1 = -th;
+    t2 = -tl;
+    a = psik__fm_exp_dd(psik__fm_sel(wet, th, t1), psik__fm_sel(wet, tl, t2));
+    b = psik__fm_log1p_fin(a);
+    psik__fm_mul_dd(k, lph, lpl, &kh, &kl);
+    mb = m * b;
+    t1 = -kh;
+    psik__fm_two_sum(psik__fm_sel(wet, 0.0, t1), -mb, &e1h, &t1);
+    t2 = -kl;
+    e1l = t1 + psik__fm_sel(wet, 0.0, t2);
+    psik__fm_two_sum(psik__fm_sel(wet, kh, 0.0), -mb, &e2h, &t2);
+    e2l = t2 + psik__fm_sel(wet, kl, 0.0);
+    S = psik__fm_exp_dd(e1h, e1l);
+    psik__fm_exp_expm1_dd(e2h, e2l, &ym, &em1);
+    g = -em1;
+    inv = 1.0 / (1.0 + a);
+    t1 = a * inv;
+    y = psik__fm_sel(wet, t1, inv);
+    r = psik__fm_sel(wet, inv, t1);
+    invp = 1.0 / p;
+    dls = ka * y * invp;
+    dg = ka * ym * r * invp;
+    se = S;
+    G = g;
+    dG = dg;
+    if (model == PSIK_VGC_MUALEM_AE) {
+        /* Se = S / Sc; near the entry head on the wet side as
+         * exp(-m log1p((x - xe) / (1 + xe))), which keeps 1 - Se. */
+        double xe = c->xe;
+        double sw = psik__fm_exp(-m * psik__fm_log1p_fin((a - xe) / (1.0 + xe)));
+        double sq = S / c->sc;
+        se = psik__fm_sel(wet & (xe <= 1.0), sw, sq);
+        G = g / c->ge;
+        dG = dg / c->ge;
+    }
+    if (model == PSIK_VGC_BURDINE) {
+        double se2 = se * se;
+        kr = se2 * G;
+        dkr = se2 * (2.0 * G * dls + dG);
+    } else {
+        if (half) {
+            seL = sqrt(se);
+        } else {
+            double lh, ll, esh, esl;
+            if (model == PSIK_VGC_MUALEM_AE) {
+                esh = psik__fm_log_dd(se, &esl);
+            } else {
+                esh = e1h;
+                esl = e1l;
+            }
+            psik__fm_mul_dd(c->l, esh, esl, &lh, &ll);
+            seL = psik__fm_exp_dd(lh, ll);
+        }
+        ok = (seL <= DBL_MAX) & (G > 0.0);
+        kr = seL * G * G;
+        dkr = seL * G * (c->l * G * dls + 2.0 * dG);
+        kr = psik__fm_sel(ok, kr, 0.0);
+        dkr = psik__fm_sel(ok, dkr, 0.0);
+    }
+    *se_o = se;
+    *kr_o = kr;
+    *dse_o = dls * se;
+    *dkr_o = dkr;
+    return (p >= DBL_MIN) & (p <= DBL_MAX) & (th >= -700.0) & (th <= 700.0);
+}
+
+PSIK_HIDDEN int psik__vg_point_fast(const psik_vgc *c, double s, psik_point *out)
+{
+    double se, kr, dse, dkr;
+    int ok;
+    if (c->l == 0.5) {
+        if (c->model == PSIK_VGC_MUALEM)
+            ok = vg_core(c, s, 1, PSIK_VGC_MUALEM, &se, &kr, &dse, &dkr);
+        else if (c->model == PSIK_VGC_MUALEM_AE)
+            ok = vg_core(c, s, 1, PSIK_VGC_MUALEM_AE, &se, &kr, &dse, &dkr);
+        else
+            ok = vg_core(c, s, 1, PSIK_VGC_BURDINE, &se, &kr, &dse, &dkr);
+    } else {
+        if (c->model == PSIK_VGC_MUALEM)
+            ok = vg_core(c, s, 0, PSIK_VGC_MUALEM, &se, &kr, &dse, &dkr);
+        else if (c->model == PSIK_VGC_MUALEM_AE)
+            ok = vg_core(c, s, 0, PSIK_VGC_MUALEM_AE, &se, &kr, &dse, &dkr);
+        else
+            ok = vg_core(c, s, 0, PSIK_VGC_BURDINE, &se, &kr, &dse, &dkr);
+    }
+    if (!ok)
+        return 0;
+    out->se = se;
+    out->kr = kr;
+    out->dse = dse;
+    out->dkr = dkr;
+    return 1;
+}
+
+/* The constants of one block loop. */
+typedef struct vg_blk {
+    const psik_vgc *c;
+    double h_sat, tr, dts, ts, ks;
+} vg_blk;
+
+/* One block: outputs (none NULL here) and a flag per lane for the
+ * scalar fix-up. The same assembly as psik_eval in eval.c. */
+PSIK_FM void vg_block_body(const vg_blk *bk, int half, int model, int cnt,
+                           const double *restrict h, double *restrict th,
+                           double *restrict kk, double *restrict cc,
+                           double *restrict dk, unsigned char *restrict bad)
+{
+    const double h_sat = bk->h_sat, tr = bk->tr, dts = bk->dts, ts = bk->ts, ks = bk->ks;
+    int i;
+    for (i = 0; i < cnt; i++) {
+        double hi = h[i], se, kr, dse, dkr, t;
+        int ok = vg_core(bk->c, -hi, half, model, &se, &kr, &dse, &dkr);
+        se = vc_01(se);
+        kr = vc_01(kr);
+        dse = vc_pos(dse);
+        dkr = vc_pos(dkr);
+        t = tr + dts * se;
+        th[i] = psik__fm_sel(t > ts, ts, t);
+        kk[i] = ks * kr;
+        cc[i] = vc_pos(dts * dse);
+        dk[i] = vc_pos(ks * dkr);
+        bad[i] = (unsigned char)(!(hi < h_sat) | !ok);
+    }
+}
+
+#define VG_BLOCK_ARGS const vg_blk *bk, int cnt, const double *restrict h, \
+    double *restrict th, double *restrict kk, double *restrict cc, \
+    double *restrict dk, unsigned char *restrict bad
+#define VG_BLOCK_PASS bk, cnt, h, th, kk, cc, dk, bad
+
+typedef void (*vg_block_fn)(VG_BLOCK_ARGS);
+
+#define VG_VARIANTS(suffix, attr)                                                     \
+    attr static void vgm_half_##suffix(VG_BLOCK_ARGS)                                 \
+    { vg_block_body(bk, 1, PSIK_VGC_MUALEM, cnt, h, th, kk, cc, dk, bad); }           \
+    attr static void vgm_any_##suffix(VG_BLOCK_ARGS)                                  \
+    { vg_block_body(bk, 0, PSIK_VGC_MUALEM, cnt, h, th, kk, cc, dk, bad); }           \
+    attr static void vgae_half_##suffix(VG_BLOCK_ARGS)                                \
+    { vg_block_body(bk, 1, PSIK_VGC_MUALEM_AE, cnt, h, th, kk, cc, dk, bad); }        \
+    attr static void vgae_any_##suffix(VG_BLOCK_ARGS)                                 \
+    { vg_block_body(bk, 0, PSIK_VGC_MUALEM_AE, cnt, h, th, kk, cc, dk, bad); }        \
+    attr static void vgb_##suffix(VG_BLOCK_ARGS)                                      \
+    { vg_block_body(bk, 1, PSIK_VGC_BURDINE, cnt, h, th, kk, cc, dk, bad); }          \
+    static vg_block_fn pick_##suffix(const psik_vgc *c)                               \
+    {                                                                                 \
+        if (c->model == PSIK_VGC_BURDINE) return vgb_##suffix;                        \
+        if (c->model == PSIK_VGC_MUALEM_AE)                                           \
+            return c->l == 0.5 ? vgae_half_##suffix : vgae_any_##suffix;              \
+        return c->l == 0.5 ? vgm_half_##suffix : vgm_any_##suffix;                    \
+    }
+
+VG_VARIANTS(base, )
+#if PSIK_VG_DISPATCH
+VG_VARIANTS(avx2, __attribute__((target("avx2"))))
+VG_VARIANTS(avx512, __attribute__((target("avx512f,prefer-vector-width=512"))))
+#endif
+
+static vg_block_fn pick(const psik_vgc *c)
+{
+#if PSIK_VG_DISPATCH
+    if (__builtin_cpu_supports("avx512f"))
+        return pick_avx512(c);
+    if (__builtin_cpu_supports("avx2"))
+        return pick_avx2(c);
+#endif
+    return pick_base(c);
+}
+
+PSIK_HIDDEN void psik__vg_batch(const psik_model *m, const psik_vgc *c, size_t count,
+                                const double *h, double *theta, double *k,
+                                double *capacity, double *dk_dh)
+{
+    double s_th[BLK], s_k[BLK], s_c[BLK], s_dk[BLK];
+    unsigned char bad[BLK];
+    vg_blk bk;
+    vg_block_fn fn = pick(c);
+    size_t i0;
+    bk.c = c;
+    bk.h_sat = m->h_sat;
+    bk.tr = m->theta_r;
+    bk.ts = m->theta_s;
+    bk.dts = m->theta_s - m->theta_r;
+    bk.ks = m->ks;
+    for (i0 = 0; i0 < count; i0 += BLK) {
+        int cnt = count - i0 < BLK ? (int)(count - i0) : BLK, i;
+        double *th = theta ? theta + i0 : s_th;
+        double *kk = k ? k + i0 : s_k;
+        double *cc = capacity ? capacity + i0 : s_c;
+        double *dk = dk_dh ? dk_dh + i0 : s_dk;
+        fn(&bk, cnt, h + i0, th, kk, cc, dk, bad);
+        for (i = 0; i < cnt; i++) {
+            if (bad[i]) {
+                psik_state st;
+                psik_eval(m, h[i0 + i], &st);
+                th[i] = st.theta;
+                kk[i] = st.k;
+                cc[i] = st.capacity;
+                dk[i] = st.dk_dh;
+            }
+        }
+    }
+}

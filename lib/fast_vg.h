@@ -1,0 +1,31 @@
+/* fast_vg.h - the fused van Genuchten point and its batch kernels
+ * (lib/batch_vg.c), called from the rows in lib/vg.c. Not installed. */
+#ifndef PSIK_FAST_VG_H
+#define PSIK_FAST_VG_H
+
+#include "psik_internal.h"
+
+/* The constants the fused point needs, in the notation of vg.c. */
+typedef struct psik_vgc {
+    double alpha, n, m, k;   /* k = m n (exact: n - 1 or n - 2) */
+    double l;                /* pore connectivity (Mualem) */
+    double sc, ge, xe;       /* vgm_ae: Se, g and x of the plain curve at h_e
+                                (sc = ge = 1, xe = 0 for the other kinds) */
+    int model;               /* PSIK_VGC_MUALEM, _BURDINE or _MUALEM_AE */
+} psik_vgc;
+
+enum { PSIK_VGC_MUALEM = 1, PSIK_VGC_BURDINE, PSIK_VGC_MUALEM_AE };
+
+/* The point at suction s through the fused core (two logs, three exps for
+ * l = 1/2). Returns 0, writing nothing, outside the core's range (suction
+ * not positive and finite, or |n log(alpha s)| > 700): the caller then uses
+ * its own path. Where it returns 1 the values keep the accuracy goal
+ * (tests/unit/test_accuracy.c) and equal the batch kernel's bit for bit. */
+PSIK_HIDDEN int psik__vg_point_fast(const psik_vgc *c, double s, psik_point *out);
+
+/* psik_eval_batch for a van Genuchten row (see psik_family.batch). */
+PSIK_HIDDEN void psik__vg_batch(const psik_model *m, const psik_vgc *c, size_t count,
+                                const double *h, double *theta, double *k,
+                                double *capacity, double *dk_dh);
+
+#endif
