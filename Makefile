@@ -145,7 +145,18 @@ uninstall:
 	    $(if $(CLI_SRC),'$(DESTDIR)$(BINDIR)/psik')
 
 # ---------------------------------------------------------------- demo, docs
-demo: $(B)/bin/vg_demo
+# The main job: fit every model to the bundled drainage experiment, rank,
+# plot, tabulate (examples/demo.sh; outputs in $(B)/demo). vg-demo runs the
+# small evaluation example.
+demo: all $(B)/bin/fit_api
+	@sh examples/demo.sh $(B)
+
+$(B)/bin/fit_api: examples/fit_api.c $(LIB_A)
+	@mkdir -p $(dir $@)
+	$(CC) -std=$(STD) $(OPT) $(WARN) -Iinclude -o $@ $< $(LIB_A) $(LDLIBS)
+
+.PHONY: vg-demo
+vg-demo: $(B)/bin/vg_demo
 	@$(B)/bin/vg_demo
 
 $(B)/bin/vg_demo: examples/vg_demo.c $(LIB_A)
@@ -162,3 +173,31 @@ docs:
 
 clean:
 	rm -rf $(B)
+# ---------------------------------------------------------------- fuzzing
+# libFuzzer targets (clang): the tool's CSV reader and psik_init +
+# evaluation (+ a small fit) on arbitrary bytes; each runs FUZZ_SECONDS.
+FUZZ_SECONDS ?= 60
+FUZZ_CC  ?= clang
+FUZZ_FLAGS = -g -O1 -fsanitize=fuzzer,address,undefined -fno-sanitize-recover=all
+.PHONY: fuzz
+fuzz: $(B)/fuzz/fuzz_csv $(B)/fuzz/fuzz_model
+	@sh tests/fuzz/run.sh $(B) $(FUZZ_SECONDS)
+
+$(B)/fuzz/fuzz_csv: tests/fuzz/fuzz_csv.c examples/cli/csv.c examples/cli/csv.h
+	@mkdir -p $(dir $@)
+	$(FUZZ_CC) $(FUZZ_FLAGS) -Iexamples/cli -o $@ tests/fuzz/fuzz_csv.c examples/cli/csv.c -lm
+
+$(B)/fuzz/fuzz_model: tests/fuzz/fuzz_model.c $(LIB_SRC) include/psik.h lib/psik_internal.h
+	@mkdir -p $(dir $@)
+	$(FUZZ_CC) $(FUZZ_FLAGS) -Iinclude -Ilib -o $@ tests/fuzz/fuzz_model.c $(LIB_SRC) -lm
+
+# ---------------------------------------------------------------- fit bench
+# Fit time per data set against SciPy's least_squares on the same sets.
+.PHONY: bench-fit
+bench: bench-fit
+bench-fit: $(B)/bench/bench_fit
+	@sh tests/bench/fit/run.sh $(B)
+
+$(B)/bench/bench_fit: tests/bench/fit/bench_fit.c $(LIB_A)
+	@mkdir -p $(dir $@)
+	$(CC) -std=$(STD) $(OPT) $(WARN) -Iinclude -o $@ $< $(LIB_A) $(LDLIBS)
