@@ -250,6 +250,34 @@ PSIK_API void psik_eval_batch(const psik_model *m, size_t count, const double *h
 /**@}*/
 
 /**
+ * @name Texture-class presets
+ * Class-average van Genuchten-Mualem parameters (PSIK_VGM, l = 0.5) for the
+ * twelve USDA soil texture classes: the means of Carsel & Parrish (1988),
+ * in cm (alpha in 1/cm, heads in cm) and cm/day (ks). They describe a
+ * typical soil of the class, not a particular one: use them when no
+ * measured retention or conductivity data exist for the site (first
+ * estimates, sensitivity studies, teaching), and prefer parameters fitted
+ * to the site's own data (psik_fit()) whenever there are any.
+ */
+/**@{*/
+/**
+ * Build the PSIK_VGM model of a USDA texture class.
+ * @param m        the model to fill (on failure it is left with kind = 0)
+ * @param texture  class name as psik_preset_name() lists it, e.g.
+ *                 "silty clay loam"; letter case is ignored and '_' or '-'
+ *                 may stand for a space ("Silty_Clay_Loam")
+ * @return PSIK_OK; PSIK_EINVAL for NULL pointers or an unknown class name.
+ */
+PSIK_API psik_status psik_preset(psik_model *m, const char *texture);
+/**
+ * Name of preset @p i (0-based), from "sand" to "clay" in order of
+ * decreasing sand content as in the USDA texture triangle legend;
+ * NULL when @p i is out of range, so a loop can stop at the first NULL.
+ */
+PSIK_API const char *psik_preset_name(int i);
+/**@}*/
+
+/**
  * @name Fitting parameters to laboratory data
  *
  * psik_fit() estimates the parameters of any kind from a retention data

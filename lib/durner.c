@@ -54,6 +54,8 @@ typedef struct dur_sum {
     double dg;    /* sum w alpha dg/dh */
     double cse;   /* sum w (1 - S), kept exactly where S is near 1 */
     double cg;    /* sum w alpha (1 - g) = sum w alpha y^m */
+    double sdse;  /* s dSe/dh = sum w S k y (no underflow of 1/s factors) */
+    double sdg;   /* s (sum w alpha dg/dh) = sum w alpha k y^m r */
 } dur_sum;
 
 /* One mode at suction s (finite, > 0), accumulated into *acc. */
@@ -61,7 +63,7 @@ static void mode_add(const double *a, int i, double s, dur_sum *acc)
 {
     const double alpha = a[A_ALPHA(i)], n = a[A_N(i)], mm = a[A_M(i)], w = a[A_W(i)];
     const double k = n - 1.0;     /* exact for n >= 1 */
-    double p = alpha * s, S, cS, g, dls, dg, ym;
+    double p = alpha * s, S, cS, g, dls, dg, ym, ky, kr_;
     if (p <= 1.0) {
         double x = pow(p, n), r = 1.0 / (1.0 + x), y = x * r, l1 = log1p(x);
         S = exp(-mm * l1);
@@ -70,7 +72,9 @@ static void mode_add(const double *a, int i, double s, dur_sum *acc)
         g = ym < 0.5 ? 1.0 - ym : -expm1(mm * log(y));
         dls = k * alpha * pow(p, n - 1.0) * r;
         dg = k * alpha * pow(p, k - 1.0) * S * r;
-    } else {
+        ky = k * y;
+        kr_ = k * ym * r;
+    } else if (p < INFINITY) {
         double u = pow(p, -n), b = log1p(u), y = 1.0 / (1.0 + u);
         ym = exp(-mm * b);
         S = pow(p, -k) * ym;
@@ -78,6 +82,19 @@ static void mode_add(const double *a, int i, double s, dur_sum *acc)
         g = -expm1(-mm * b);
         dls = k * alpha * y / p;
         dg = k * alpha * ym * (u * y) / p;
+        ky = k * y;
+        kr_ = k * ym * (u * y);
+    } else {
+        /* alpha s beyond the largest double: ln p from the parts */
+        double lp = log(alpha) + log(s);
+        ym = 1.0;
+        S = exp(-k * lp);
+        cS = 1.0;
+        g = mm * exp(-n * lp);
+        dls = k / s;
+        dg = 0.0;
+        ky = k;
+        kr_ = 0.0;
     }
     acc->se += w * S;
     acc->dse += w * S * dls;
@@ -85,12 +102,15 @@ static void mode_add(const double *a, int i, double s, dur_sum *acc)
     acc->dg += w * alpha * dg;
     acc->cse += w * cS;
     acc->cg += w * alpha * ym;
+    acc->sdse += w * S * ky;
+    acc->sdg += w * alpha * kr_;
 }
 
 static void dur_sums(const double *a, double s, dur_sum *acc)
 {
     int i, nm = (int)a[A_NMODES];
     acc->se = acc->dse = acc->g = acc->dg = acc->cse = acc->cg = 0.0;
+    acc->sdse = acc->sdg = 0.0;
     for (i = 0; i < nm; i++)
         mode_add(a, i, s, acc);
 }
@@ -106,7 +126,9 @@ static void dur_point(const psik_model *m, double s, psik_point *out)
     }
     dur_sums(a, s, &q);
     out->se = q.se;
-    out->dse = q.dse;
+    /* the scaled sums for s >= 1, where w S dS/dh may underflow term by
+     * term; the direct ones for s < 1, where 1/s may overflow */
+    out->dse = s >= 1.0 ? q.sdse / s : q.dse;
     if (!(q.se > 0.0) || !(q.g > 0.0)) {
         out->kr = out->dkr = 0.0;
         return;
@@ -123,7 +145,12 @@ static void dur_point(const psik_model *m, double s, psik_point *out)
         }
     }
     out->kr = kr;
-    out->dkr = kr > 0.0 ? kr * (a[A_L] * (q.dse / q.se) + 2.0 * (q.dg / q.g)) : 0.0;
+    if (!(kr > 0.0))
+        out->dkr = 0.0;
+    else if (s >= 1.0)
+        out->dkr = kr * ((a[A_L] * (q.sdse / q.se) + 2.0 * (q.sdg / q.g)) / s);
+    else
+        out->dkr = kr * (a[A_L] * (q.dse / q.se) + 2.0 * (q.dg / q.g));
 }
 
 static double dur_se(const psik_model *m, double s)
@@ -138,6 +165,8 @@ static double dur_se(const psik_model *m, double s)
         double p = alpha * s;
         if (p <= 1.0)
             se += a[A_W(i)] * exp(-mm * log1p(pow(p, n)));
+        else if (!(p < INFINITY))
+            se += a[A_W(i)] * exp(-(n - 1.0) * (log(alpha) + log(s)));
         else
             se += a[A_W(i)] * (pow(p, -(n - 1.0)) * exp(-mm * log1p(pow(p, -n))));
     }
@@ -179,7 +208,7 @@ static double dur_residual(const double *a, double s, double target, double *dF)
         *dF = 0.0;
         return -INFINITY;
     }
-    *dF = -s * (q.dse / q.se);
+    *dF = -(q.sdse / q.se);
     return log1p((q.se - target) / target);
 }
 
@@ -206,7 +235,8 @@ static double dur_suction(const psik_model *m, double se)
         return INFINITY;
     s = exp(0.5 * (log(slo) + log(shi)));
     for (it = 0; it < MAX_ITER; it++) {
-        double dt, snew;
+        double dt = NAN, snew = NAN;
+        int newton;
         F = dur_residual(a, s, se, &dF);
         if (F == 0.0)
             return s;
@@ -216,22 +246,24 @@ static double dur_suction(const psik_model *m, double se)
             shi = s;
         if (final)
             break;
-        dt = dF < 0.0 ? -F / dF : NAN;
-        snew = s * exp(dt);
-        if (!(snew > slo && snew < shi) || !(fabs(F) <= 0.5 * fabs(Fprev))) {
-            /* bisection in ln s (unless Newton is already converging
-             * inside the bracket: accept small steps that stay inside) */
-            if (!(snew > slo && snew < shi) || fabs(dt) > 1e-3) {
-                snew = exp(0.5 * (log(slo) + log(shi)));
-                dt = log(snew / s);
-            }
+        if (dF < 0.0) {
+            dt = -F / dF;
+            snew = fabs(dt) < 1.0 ? s + s * expm1(dt) : s * exp(dt);
+        }
+        /* Newton when it stays in the bracket and converges (|F| halves,
+         * or the step is already small); otherwise bisection in ln s */
+        newton = snew >= slo && snew <= shi &&
+                 (fabs(F) <= 0.5 * fabs(Fprev) || fabs(dt) <= 1e-3);
+        if (!newton) {
+            snew = exp(0.5 * (log(slo) + log(shi)));
+            dt = INFINITY;
         }
         Fprev = F;
         if (snew == s)
-            break;
+            break;              /* the step is below the resolution of s */
         s = snew;
         if (fabs(dt) < 0x1p-45)
-            final = 1;            /* one more Newton step reaches the noise level */
+            final = 1;          /* one more Newton step reaches the noise level */
         if (shi - slo <= 4.0 * DBL_EPSILON * slo)
             break;
     }
