@@ -170,11 +170,18 @@ PSIK_API void psik_eval_batch(const psik_model *m, size_t count, const double *h
     }
 }
 
-/* Effective saturation from water content: exact subtraction near theta_r
- * and theta_s (Sterbenz), one rounding in the division. */
+/* Effective saturation from water content theta_r < theta < theta_s:
+ * exact subtraction near theta_r and theta_s (Sterbenz), one rounding in
+ * the division, kept strictly inside (0, 1) so that a water content just
+ * below theta_s is not taken for saturation. */
 static double se_of_theta(const psik_model *m, double theta)
 {
-    return (theta - m->theta_r) / (m->theta_s - m->theta_r);
+    double se = (theta - m->theta_r) / (m->theta_s - m->theta_r);
+    if (se >= 1.0)
+        se = 1.0 - DBL_EPSILON / 2.0;
+    if (se <= 0.0)
+        se = DBL_MIN;
+    return se;
 }
 
 PSIK_API double psik_head_se(const psik_model *m, double se)
@@ -231,8 +238,6 @@ PSIK_API double psik_k_theta(const psik_model *m, double theta)
     if (theta <= m->theta_r)
         return 0.0;
     se = se_of_theta(m, theta);
-    if (se >= 1.0)
-        return m->ks;
     point_of_se(f, m, se, &p);
     return m->ks * p.kr;
 }
@@ -246,13 +251,13 @@ PSIK_API double psik_diffusivity(const psik_model *m, double theta)
         return NAN;
     if (theta <= m->theta_r)
         return 0.0;
-    se = se_of_theta(m, theta);
-    if (theta >= m->theta_s || se >= 1.0) {
+    if (theta >= m->theta_s) {
         /* limit from below: capacity just below the saturation head */
         point_at(f, m, -m->h_sat, &p);
         c = (m->theta_s - m->theta_r) * p.dse;
         return c > 0.0 ? m->ks / c : INFINITY;
     }
+    se = se_of_theta(m, theta);
     point_of_se(f, m, se, &p);
     c = (m->theta_s - m->theta_r) * p.dse;
     if (!(c > 0.0))

@@ -62,8 +62,30 @@ typedef struct vg_pt {
     double g;     /* 1 - y^m */
     double dls;   /* d ln Se / dh */
     double dg;    /* d g / dh */
+    double ps;    /* p 2^512 when p is below DBL_MIN (subnormal suction) */
     int wet;
+    int tiny;     /* p < DBL_MIN: powers of p through ps */
 } vg_pt;
+
+#define TWO512 1.3407807929942597e+154   /* 2^512, exactly */
+
+/* p^e, exact-exponent powers of p. For p below DBL_MIN (suctions within
+ * 1e-308 of saturation) p has lost digits or is 0, so the power is taken
+ * of the scaled ps = alpha (s 2^512) and rescaled by 2^(-512 e), whose
+ * argument is exact. */
+static double vg_powp(const vg_pt *q, double e)
+{
+    if (q->tiny)
+        return pow(q->ps, e) * exp2(-512.0 * e);
+    return pow(q->p, e);
+}
+
+static double vg_logp(const vg_pt *q)
+{
+    if (q->tiny)
+        return log(q->ps) - 512.0 * 0.69314718055994530942;
+    return log(q->p);
+}
 
 static void vg_finish(const double *a, vg_pt *q)
 {
@@ -71,19 +93,19 @@ static void vg_finish(const double *a, vg_pt *q)
     const int kexact = a[A_KEXACT] != 0.0;
     if (q->wet) {
         if (kexact || q->y < DBL_MIN)
-            q->ym = pow(q->p, k) * q->se;           /* y^m = p^(mn) Se */
+            q->ym = vg_powp(q, k) * q->se;          /* y^m = p^(mn) Se */
         else
             q->ym = pow(q->y, mm);
         if (q->ym < 0.5) {
             q->g = 1.0 - q->ym;
         } else {
             /* ln y; when x has underflowed, from ln p (y = x / (1 + x)) */
-            double lny = q->y >= DBL_MIN ? log(q->y) : n * log(q->p) - log1p(q->x);
+            double lny = q->y >= DBL_MIN ? log(q->y) : n * vg_logp(q) - log1p(q->x);
             q->g = -expm1(mm * lny);
         }
-        q->dls = k * alpha * pow(q->p, n - 1.0) * q->r;
-        if (kexact)
-            q->dg = k * alpha * pow(q->p, k - 1.0) * q->se * q->r;
+        q->dls = k * alpha * vg_powp(q, n - 1.0) * q->r;
+        if (kexact || q->tiny)
+            q->dg = k * alpha * vg_powp(q, k - 1.0) * q->se * q->r;
         else
             q->dg = k * alpha * (q->ym / q->p) * q->r;
     } else {
@@ -101,8 +123,10 @@ static void vg_from_s(const double *a, double s, vg_pt *q)
     const double alpha = a[A_ALPHA], n = a[A_N], mm = a[A_M], k = a[A_K];
     double p = alpha * s;
     q->p = p;
+    q->tiny = p < DBL_MIN;
+    q->ps = q->tiny ? alpha * (s * TWO512) : p;
     if (p <= 1.0) {
-        double x = pow(p, n);
+        double x = vg_powp(q, n);
         q->wet = 1;
         q->x = x;
         q->u = 1.0 / x;
@@ -132,6 +156,7 @@ static void vg_from_se(const double *a, double S, vg_pt *q)
     const double in_hi = a[A_IN_HI], in_lo = a[A_IN_LO];
     double t = -log(S);                   /* > 0 */
     q->se = S;
+    q->tiny = 0;
     if (t * im_hi <= 0.6931471805599453) {   /* x <= 1 */
         double x = expm1(t * im_hi + t * im_lo);
         q->wet = 1;
@@ -508,7 +533,7 @@ static void vg_free_m_fill(const double *a, const vg_pt *q, psik_point *out)
     out->se = q->se;
     out->dse = q->dls * q->se;
     if (q->wet && q->p < DBL_MIN)
-        dI = a[A_N] * a[A_ALPHA] * pow(q->p, a[A_N] - 2.0) * q->r * q->se / a[A_BAB];
+        dI = a[A_N] * a[A_ALPHA] * vg_powp(q, a[A_N] - 2.0) * q->r * q->se / a[A_BAB];
     mualem_out(q->se, a[A_L], I, q->dls, dI, out);
 }
 

@@ -105,7 +105,15 @@ void rc_max_init(rc_max *m, const char *what)
 
 void rc_max_add(rc_max *m, double got, double want, double cond, const rc_row *r)
 {
+    rc_max_add_tol(m, got, want, cond, 0.0, r);
+}
+
+void rc_max_add_tol(rc_max *m, double got, double want, double cond, double abs_tol,
+                    const rc_row *r)
+{
     double e = rc_ulps(got, want);
+    if (abs_tol > 0.0 && isfinite(got) && fabs(got - want) <= abs_tol)
+        e = 0.0;
     double c = cond > 1.0 ? cond : 1.0;
     double s = e / c;
     m->count++;

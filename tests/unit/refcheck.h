@@ -49,6 +49,11 @@ typedef struct rc_max {
 
 void rc_max_init(rc_max *m, const char *what);
 void rc_max_add(rc_max *m, double got, double want, double cond, const rc_row *r);
+/* The same, first forgiving an absolute error abs_tol (for results that
+ * underflow into the subnormal range, where a product with a scale such as
+ * ks carries that much absolute error by IEEE rounding alone). */
+void rc_max_add_tol(rc_max *m, double got, double want, double cond, double abs_tol,
+                    const rc_row *r);
 /* Print "# <kind> <what>: max <x> ulp/max(1,cond) (<y> ulp raw, cond <c>) at line L, h = H, N points" */
 void rc_max_print(const rc_max *m, const char *kind);
 
