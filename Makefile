@@ -5,6 +5,8 @@
 #   make demo       the main job on the bundled demo data
 #   make docs       Doxygen HTML in build/docs (fails on any warning)
 #   make bench      speed, as ratios to a baseline run in the same process
+#   make single     build/include/psik_single.h, the header-only form (tools/mksingle.py)
+#   make install    PREFIX=/usr/local DESTDIR= : headers, libraries, psik.pc
 
 CC       ?= cc
 CXX      ?= c++
