@@ -397,8 +397,12 @@ static void expand(const fit_ctx *c, const double *u, double *p)
 {
     int k;
     memcpy(p, c->held, sizeof(double) * (size_t)c->np);
-    for (k = 0; k < c->nf; k++)
-        p[c->fi[k]] = to_p(c, c->fi[k], u[k]);
+    for (k = 0; k < c->nf; k++) {
+        int j = c->fi[k];
+        double v = to_p(c, j, u[k]);
+        /* exp(log(lo)) may round to just outside the bound */
+        p[j] = v < c->lo[j] ? c->lo[j] : (v > c->hi[j] ? c->hi[j] : v);
+    }
 }
 
 /* ------------------------------------------------------------ Levenberg-Marquardt */
