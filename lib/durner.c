@@ -42,8 +42,10 @@
 #define A_M(i)     (4 * (i) + 2)
 #define A_W(i)     (4 * (i) + 3)
 #define A_L        12
-#define A_INVSUM   13
+#define A_SUM      13  /* sum w_i alpha_i */
 #define A_NMODES   14
+#define A_WLO      15  /* the last weight, 1 - sum of the others, is
+                          w + A_WLO exactly (two parts) */
 
 #define MAX_ITER 200
 
@@ -96,14 +98,26 @@ static void mode_add(const double *a, int i, double s, dur_sum *acc)
         ky = k;
         kr_ = 0.0;
     }
-    acc->se += w * S;
-    acc->dse += w * S * dls;
-    acc->g += w * alpha * g;
-    acc->dg += w * alpha * dg;
-    acc->cse += w * cS;
-    acc->cg += w * alpha * ym;
-    acc->sdse += w * S * ky;
-    acc->sdg += w * alpha * kr_;
+    {
+        /* the last weight carries its rounding remainder */
+        double wl = i == (int)a[A_NMODES] - 1 ? a[A_WLO] : 0.0;
+        double wS = w * S + wl * S, wa = w * alpha + wl * alpha;
+        acc->se += wS;
+        acc->dse += wS * dls;
+        acc->g += wa * g;
+        acc->dg += wa * dg;
+        acc->cse += w * cS + wl * cS;
+        acc->cg += wa * ym;
+        acc->sdse += wS * ky;
+        acc->sdg += wa * kr_;
+    }
+}
+
+/* Se from the sums: 1 - sum w (1 - S) near saturation (the weights add up
+ * to 1 exactly, the last one in two parts), the plain sum elsewhere. */
+static double se_of(const dur_sum *q)
+{
+    return q->cse < 0.5 ? 1.0 - q->cse : q->se;
 }
 
 static void dur_sums(const double *a, double s, dur_sum *acc)
@@ -125,6 +139,7 @@ static void dur_point(const psik_model *m, double s, psik_point *out)
         return;
     }
     dur_sums(a, s, &q);
+    q.se = se_of(&q);
     out->se = q.se;
     /* the scaled sums for s >= 1, where w S dS/dh may underflow term by
      * term; the direct ones for s < 1, where 1/s may overflow */
@@ -134,13 +149,19 @@ static void dur_point(const psik_model *m, double s, psik_point *out)
         return;
     }
     {
-        double cgr = q.cg * a[A_INVSUM];     /* 1 - G */
+        double cgr = q.cg / a[A_SUM];     /* 1 - G */
         if (q.cse < 0.5 && cgr < 0.5) {
             /* near saturation: from the complements, which keep the digits
              * that Se and G ~ 1 have lost */
             kr = exp(a[A_L] * log1p(-q.cse) + 2.0 * log1p(-cgr));
+        } else if (a[A_L] >= 0.0 || q.se > 1e-150) {
+            /* (Se^L G) G: for L < 0 the first product lifts G before the
+             * second, so G^2 never underflows on its own */
+            double G = q.g / a[A_SUM];
+            kr = (pow(q.se, a[A_L]) * G) * G;
         } else {
-            r = pow(q.se, 0.5 * a[A_L]) * (q.g * a[A_INVSUM]);
+            /* Se^L would overflow: the square root of Kr stays in range */
+            r = pow(q.se, 0.5 * a[A_L]) * (q.g / a[A_SUM]);
             kr = r * r;
         }
     }
@@ -153,24 +174,15 @@ static void dur_point(const psik_model *m, double s, psik_point *out)
         out->dkr = kr * (a[A_L] * (q.dse / q.se) + 2.0 * (q.dg / q.g));
 }
 
+/* Se alone: the same sums as dur_point, so psik_se and psik_eval agree
+ * to the last bit. */
 static double dur_se(const psik_model *m, double s)
 {
-    const double *a = m->aux;
-    int i, nm = (int)a[A_NMODES];
-    double se = 0.0;
+    dur_sum q;
     if (isinf(s))
         return 0.0;
-    for (i = 0; i < nm; i++) {
-        const double alpha = a[A_ALPHA(i)], n = a[A_N(i)], mm = a[A_M(i)];
-        double p = alpha * s;
-        if (p <= 1.0)
-            se += a[A_W(i)] * exp(-mm * log1p(pow(p, n)));
-        else if (!(p < INFINITY))
-            se += a[A_W(i)] * exp(-(n - 1.0) * (log(alpha) + log(s)));
-        else
-            se += a[A_W(i)] * (pow(p, -(n - 1.0)) * exp(-mm * log1p(pow(p, -n))));
-    }
-    return se;
+    dur_sums(m->aux, s, &q);
+    return se_of(&q);
 }
 
 static double dur_kr(const psik_model *m, double s)
@@ -204,6 +216,7 @@ static double dur_residual(const double *a, double s, double target, double *dF)
 {
     dur_sum q;
     dur_sums(a, s, &q);
+    q.se = se_of(&q);
     if (!(q.se > 0.0)) {
         *dF = 0.0;
         return -INFINITY;
@@ -362,8 +375,9 @@ static void finish_prepare(psik_model *m, int nm, double L)
     int i;
     for (i = 0; i < nm; i++)
         sum += a[A_W(i)] * a[A_ALPHA(i)];
+    sum += a[A_WLO] * a[A_ALPHA(nm - 1)];
     a[A_L] = L;
-    a[A_INVSUM] = 1.0 / sum;
+    a[A_SUM] = sum;
     a[A_NMODES] = (double)nm;
     m->h_sat = 0.0;
 }
@@ -373,6 +387,7 @@ static void d2_prepare(psik_model *m)
     const double *p = m->par;
     set_mode(m->aux, 0, p[3], p[4], p[2]);
     set_mode(m->aux, 1, p[5], p[6], 1.0 - p[2]);
+    m->aux[A_WLO] = (1.0 - m->aux[A_W(1)]) - p[2];   /* exact remainder */
     finish_prepare(m, 2, p[8]);
 }
 
@@ -381,7 +396,13 @@ static void d3_prepare(psik_model *m)
     const double *p = m->par;
     set_mode(m->aux, 0, p[3], p[4], p[2]);
     set_mode(m->aux, 1, p[6], p[7], p[5]);
-    set_mode(m->aux, 2, p[8], p[9], (1.0 - p[2]) - p[5]);
+    {
+        /* w3 = (1 - w1) - w2 in two parts: each difference's remainder */
+        double t = 1.0 - p[2], e1 = (1.0 - t) - p[2];
+        double w3 = t - p[5], e2 = (t - w3) - p[5];
+        set_mode(m->aux, 2, p[8], p[9], w3);
+        m->aux[A_WLO] = e1 + e2;
+    }
     finish_prepare(m, 3, p[11]);
 }
 

@@ -13,8 +13,8 @@
  *   error ~1e-16 whatever the size of s/s_m, no quotient formed), then the
  *   division by sigma with its exact remainder. The tail and density take
  *   the two parts (special.c), so no error grows like z^2 ~ |ln s|^2.
- * - Kr = (Se^(L/2) Q(w))^2: Se^(L/2) <= 1/Se cannot overflow while Se is
- *   normal, and the square root of Kr stays normal while Kr is. Where Se
+ * - Kr = (Se^L Q(w)) Q(w), or (Se^(L/2) Q(w))^2 where Se^L could overflow
+ *   (L < 0, Se < 1e-150): Se^(L/2) <= 1/Se stays finite while Se is normal. Where Se
  *   or Q(w) leaves the normal range (z or w above 37) it is computed as
  *   exp(E) with E = (L/2 + 1) ln Q(z) - (z sigma + sigma^2/2)
  *   + ln(M(w)/M(z)), using Q(w)/Q(z) = exp(-(w^2 - z^2)/2) M(w)/M(z) and
@@ -64,19 +64,105 @@ static double hazard(double vh, double vl)
     return q > 0.0 ? psik__normpdf(vh, vl) / q : 0.0;
 }
 
+/* c(t) = H(t) - t. For t >= 2 from the tail of the Mills-ratio continued
+ * fraction 1/M = t + 1/(t + 2/(t + 3/(t + ...))) (40 terms reach the last
+ * place for t >= 5, 120 for t >= 2; measured with mpmath): all terms
+ * positive, so c ~ 1/t keeps its relative accuracy where 1/M - t would
+ * cancel. Below 2 directly (H/c < 6.4 there, so at most 3 bits go). */
+static double hazard_excess(double t)
+{
+    double T = t;
+    int k;
+    if (t < 2.0)
+        return hazard(t, 0.0) - t;
+    for (k = t >= 5.0 ? 40 : 120; k >= 2; k--)
+        T = t + (double)k / T;
+    return 1.0 / T;
+}
+
+/* 8-point Gauss-Legendre rule on [-1, 1] (half the nodes; symmetric). */
+static const double gl_x[4] = {0.18343464249564980, 0.52553240991632899,
+                               0.79666647741362674, 0.96028985649753623};
+static const double gl_w[4] = {0.36268378337836198, 0.31370664587788729,
+                               0.22238103445337447, 0.10122853629037626};
+
+/* H(w) - H(z) for w = z + sigma, without cancellation:
+ * z >= 5: sigma + c(w) - c(z) (c = H - t, small and slowly varying);
+ * H(w) >= 2 H(z): the plain difference (at most one bit lost);
+ * otherwise the integral of H' = H (H - t) = H c over [z, w] by the
+ * 8-point Gauss-Legendre rule on panels of width <= 1/2 (H is entire in
+ * the strip around the real axis that matters; the rule's error is far
+ * below the last place at that width). */
+static double hazard_diff(double sig, double zh, double zl, double wh, double wl)
+{
+    double hz, hw, sum = 0.0, half, len;
+    int np, p, j;
+    if (zh >= 5.0)
+        return sig + (hazard_excess(wh) - hazard_excess(zh));
+    hz = hazard(zh, zl);
+    hw = hazard(wh, wl);
+    if (hw >= 2.0 * hz)
+        return hw - hz;
+    /* integral over [zh, wh], then the ends moved by the lo parts */
+    len = wh - zh;
+    np = (int)ceil(len / 0.5);
+    half = len / (2.0 * np);
+    for (p = 0; p < np; p++) {
+        double mid = zh + (2.0 * p + 1.0) * half, acc = 0.0;
+        for (j = 0; j < 4; j++) {
+            double t1 = mid - half * gl_x[j], t2 = mid + half * gl_x[j];
+            acc += gl_w[j] * (hazard(t1, 0.0) * hazard_excess(t1) +
+                              hazard(t2, 0.0) * hazard_excess(t2));
+        }
+        sum += acc * half;
+    }
+    return sum + (hazard(wh, 0.0) * hazard_excess(wh) * wl -
+                  hazard(zh, 0.0) * hazard_excess(zh) * zl);
+}
+
+/* L H(z) + 2 H(w), the bracket of dKr/dh. For L < 0 it is written as
+ * (L + 2) H(z) + 2 (H(w) - H(z)), two terms >= 0 (L >= -2, and 2 + L is
+ * exact there), which removes the cancellation between L H(z) and 2 H(w)
+ * as L -> -2. */
+static double dkr_bracket(const double *a, double zh, double zl, double wh, double wl)
+{
+    const double L = a[A_L];
+    if (L < 0.0)
+        return 2.0 * a[A_C_HI] * hazard(zh, zl) + 2.0 * hazard_diff(a[A_SIG], zh, zl, wh, wl);
+    return L * hazard(zh, zl) + 2.0 * hazard(wh, wl);
+}
+
+/* phi(t) f for t = th + tl far in the wet tail (|t| > 30), where phi
+ * itself is near or below the smallest normal double and f (a factor
+ * such as 1/(sigma s)) may be large: exp(-t^2/2) is taken as the product
+ * of two halves exp(-t^2/4), each normal, with f in between, so that only
+ * the last multiplication rounds into the subnormal range. */
+static double phi_times(double th, double tl, double f)
+{
+    double aa = th * th, a_lo = fma(th, th, -aa), e = 0.5 * a_lo + th * tl;
+    double half = exp(-0.25 * aa);
+    double c = (0.3989422804014327 - 0.3989422804014327 * e) - 2.4923272022777433e-17;
+    return (half * (c * f)) * half;
+}
+
 /* Everything at z = zh + zl, suction s, with se = Q(z) already known. */
 static void kos_core(const double *a, double zh, double zl, double s, double se,
                      psik_point *out)
 {
-    const double sig = a[A_SIG], L = a[A_L];
+    const double sig = a[A_SIG];
     double wh, wl, kr;
     two_sum(zh, sig, &wh, &wl);
     wl += zl;
     out->se = se;
     out->dse = psik__normpdf(zh, zl) / sig / s;
     if (zh <= 0.0 || (wh <= Z_FAR && zh <= Z_FAR)) {
-        double r = pow(se, a[A_HL]) * psik__normq(wh, wl);
-        kr = r * r;
+        double qw = psik__normq(wh, wl);
+        if (a[A_L] >= 0.0 || se > 1e-150) {
+            kr = (pow(se, a[A_L]) * qw) * qw;   /* one rounding fewer than squaring */
+        } else {
+            double r = pow(se, a[A_HL]) * qw;
+            kr = r * r;
+        }
     } else {
         /* E = c ln Q(z) - (z sigma + sigma^2/2) + ln(M(w)/M(z)), c = L/2+1 */
         double lq_hi, lq_lo, p, pl, e_hi, e_lo, t, u, mz, mw;
@@ -100,8 +186,21 @@ static void kos_core(const double *a, double zh, double zl, double s, double se,
         }
     }
     out->kr = kr;
+    if (zh < -30.0) {
+        /* wet tail: Q(z), Q(w) ~ 1, H = phi/Q tiny; keep the scale factor
+         * inside (see phi_times) */
+        double f = 1.0 / sig / s;
+        double fz = f / psik__normq(zh, zl), fw = kr * f / psik__normq(wh, wl);
+        double hz = phi_times(zh, zl, kr * fz), hw = phi_times(wh, wl, fw);
+        out->dse = phi_times(zh, zl, f);
+        if (a[A_L] < 0.0)
+            out->dkr = 2.0 * a[A_C_HI] * hz + 2.0 * (hw - hz);
+        else
+            out->dkr = a[A_L] * hz + 2.0 * hw;
+        return;
+    }
     if (kr > 0.0)
-        out->dkr = kr * (L * hazard(zh, zl) + 2.0 * hazard(wh, wl)) / sig / s;
+        out->dkr = kr * dkr_bracket(a, zh, zl, wh, wl) / sig / s;
     else
         out->dkr = 0.0;
 }
