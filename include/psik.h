@@ -88,13 +88,25 @@ typedef enum {
                            incomplete beta function: theta_r theta_s alpha n m ks l */
     PSIK_VGB,         /**< van Genuchten, Burdine K, m = 1 - 2/n (n > 2):
                            theta_r theta_s alpha n ks */
-    PSIK_BCM,         /**< Brooks & Corey (1964), Mualem K: theta_r theta_s h_b lambda ks l */
-    PSIK_BCB,         /**< Brooks & Corey (1964), Burdine K: theta_r theta_s h_b lambda ks */
-    PSIK_KOSUGI,      /**< Kosugi (1996) lognormal, Mualem K: theta_r theta_s h_m sigma ks l */
-    PSIK_DURNER2,     /**< Durner (1994) bimodal van Genuchten, Mualem K:
-                           theta_r theta_s w1 alpha1 n1 alpha2 n2 ks l */
-    PSIK_DURNER3,     /**< Durner (1994) trimodal:
-                           theta_r theta_s w1 alpha1 n1 w2 alpha2 n2 alpha3 n3 ks l */
+    PSIK_BCM,         /**< Brooks & Corey (1964), Mualem K: theta_r theta_s h_b lambda ks l.
+                           Se = (h_b/h)^lambda below h_b < 0, saturated at and above
+                           h_b (C jumps there); Kr = Se^(l + 2 + 2/lambda);
+                           l > -(2 + 2/lambda) so that dK/dh > 0 */
+    PSIK_BCB,         /**< Brooks & Corey (1964), Burdine K: theta_r theta_s h_b lambda ks.
+                           Kr = Se^(3 + 2/lambda); theta_r = 0 gives Campbell (1974)
+                           with b = 1/lambda */
+    PSIK_KOSUGI,      /**< Kosugi (1996) lognormal, Mualem K: theta_r theta_s h_m sigma ks l.
+                           Se = Q(z), z = ln(h/h_m)/sigma, Q the normal upper tail;
+                           Kr = Se^l Q(z + sigma)^2; h_m < 0, sigma > 0, l >= -2 */
+    PSIK_DURNER2,     /**< Durner (1994) bimodal van Genuchten, Mualem K
+                           (Priesack & Durner 2006):
+                           theta_r theta_s w1 alpha1 n1 alpha2 n2 ks l; weights w1 and
+                           1 - w1, 0 < w1 < 1, n_i > 1, l >= -2. No closed-form
+                           inverse: psik_head() iterates (bracketed Newton in ln|h|,
+                           at most 200 steps, accurate to its condition number) */
+    PSIK_DURNER3,     /**< Durner (1994) trimodal, as PSIK_DURNER2:
+                           theta_r theta_s w1 alpha1 n1 w2 alpha2 n2 alpha3 n3 ks l;
+                           the third weight is 1 - w1 - w2 > 0 */
     PSIK_GARDNER      /**< Gardner (1958) exponential, Se = Kr = exp(alpha h):
                            theta_r theta_s alpha ks */
 } psik_kind;
