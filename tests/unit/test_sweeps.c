@@ -225,7 +225,19 @@ static void test_near_saturation(void **state)
         printf("# dK/dh(-1e-250)/dK/dh(-1e-247) = %.12f (expected 10^2.4 = %.12f)\n", r, pow(10.0, 2.4));
         assert_true(fabs(r / pow(10.0, 2.4) - 1.0) < 1e-12);
     }
-    assert_true(psik_dk_dh(&m, -4.9406564584124654e-324) == DBL_MAX);
+    /* at the smallest subnormal suction: finite, still growing */
+    {
+        double d = psik_dk_dh(&m, -4.9406564584124654e-324);
+        printf("# dK/dh at h = -4.9e-324: %.6g\n", d);
+        assert_true(isfinite(d) && d > psik_dk_dh(&m, -1e-300));
+    }
+    /* and saturating at DBL_MAX where the true value is larger */
+    {
+        double p2[6] = {0.078, 0.43, 1e-300, 1.001, 1e300, 0.5};
+        psik_model big;
+        assert_int_equal(psik_init(&big, PSIK_VGM, p2), PSIK_OK);
+        assert_true(psik_dk_dh(&big, -4.9406564584124654e-324) == DBL_MAX);
+    }
     /* air-entry form: dK/dh bounded as h -> h_e from below */
     {
         double d1 = psik_dk_dh(&ae, -2.0 - 1e-9), d2 = psik_dk_dh(&ae, -2.0 - 1e-12);
