@@ -502,6 +502,86 @@ PSIK_API psik_status psik_fit_rank(const psik_fit_result *fits, size_t count,
                                    size_t *order, double *weight);
 /**@}*/
 
+/**
+ * @name Tabulated fast path
+ * A table holds theta(h) and ln K(h) of one model as monotone piecewise
+ * cubics in ln(-h) (cubic Hermite with the model's exact slopes at the
+ * knots, limited by Fritsch & Carlson 1980 so that every piece is
+ * monotone), built once into memory the caller provides. The capacity and
+ * dK/dh it returns are the exact derivatives of those interpolants, so a
+ * scheme that integrates C stays consistent with theta. Evaluation costs
+ * one log, one exp and two cubics; heads outside the table's range, NaN
+ * and saturated heads give psik_eval()'s values. A table is plain data
+ * (no pointers; it may be copied to another buffer of the same alignment
+ * modulo 64 and read by many threads at once).
+ *
+ * Use it when one model is evaluated very many times over a known head
+ * range (a Richards solver's inner loop) and relative errors of about
+ * 1e-9 in theta and 1e-7 in K are acceptable; use psik_eval_batch() when
+ * you need the model's full accuracy.
+ */
+/**@{*/
+/** Default knot density of a table, in knots per decade of suction: with
+ *  it the tests measure theta within 1e-9 and K within 1e-7 (relative) for
+ *  van Genuchten-Mualem soils with n up to 3 (tests/unit/test_table.c). */
+#define PSIK_TABLE_DENSITY 200.0
+
+/** An interpolation table (opaque; lives in caller-provided memory). */
+typedef struct psik_table psik_table;
+
+/** Error bounds reported by psik_table_build(). */
+typedef struct psik_table_error {
+    double theta_rel;  /**< bound on |theta_table - theta| / theta over the range */
+    double k_rel;      /**< bound on |K_table - K| / K where K > 1e-280 ks */
+} psik_table_error;
+
+/**
+ * Number of knots for a table over [@p h_dry, @p h_wet] (both negative,
+ * h_dry < h_wet) at @p density knots per decade of suction (0 or less: the
+ * default PSIK_TABLE_DENSITY). 0 when the range is invalid or too large.
+ */
+PSIK_API size_t psik_table_knots(double h_dry, double h_wet, double density);
+
+/** Bytes of memory a table of @p knots knots needs (any alignment; the
+ *  builder aligns inside it). 0 for fewer than 2 or more than 2^27 knots. */
+PSIK_API size_t psik_table_bytes(size_t knots);
+
+/**
+ * Build a table of model @p m over heads [@p h_dry, @p h_wet] with @p knots
+ * uniform knots in ln(-h), in @p mem (@p bytes >= psik_table_bytes(knots)).
+ * A range reaching into the saturated heads is cut at the saturation head.
+ * Method and cost: psik_eval() at every knot and at 7 points inside every
+ * interval, where the interpolants are compared with the model: the largest
+ * relative errors seen, times 1.5 for peaks between the samples, are
+ * written to @p err (may be NULL). The model is copied: @p m need not
+ * outlive the table.
+ * @param table  out: the table, inside @p mem (NULL on failure)
+ * @return PSIK_OK; PSIK_EINVAL (NULL pointer, invalid model, knots < 2);
+ *         PSIK_EDOMAIN (not h_dry < h_wet < 0, or infinite h_dry);
+ *         PSIK_ENOMEM (@p bytes too small).
+ */
+PSIK_API psik_status psik_table_build(const psik_model *m, double h_dry, double h_wet,
+                                      size_t knots, void *mem, size_t bytes,
+                                      psik_table **table, psik_table_error *err);
+
+/**
+ * All values at head @p h from table @p t: theta, K and their derivatives
+ * from the interpolants (se = (theta - theta_r)/(theta_s - theta_r) and
+ * kr = K/ks from them). Accuracy: the bounds psik_table_build() reported.
+ * NULL or unbuilt @p t gives NaN; NULL @p out is ignored.
+ */
+PSIK_API void psik_table_eval(const psik_table *t, double h, psik_state *out);
+
+/**
+ * psik_table_eval() over @p count heads, vectorised; output pointers may be
+ * NULL (skipped) and may not overlap @p h. The same values as
+ * psik_table_eval() bit for bit.
+ */
+PSIK_API void psik_table_eval_batch(const psik_table *t, size_t count, const double *h,
+                                    double *theta, double *k, double *capacity,
+                                    double *dk_dh);
+/**@}*/
+
 #ifdef __cplusplus
 }
 #endif

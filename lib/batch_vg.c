@@ -22,9 +22,12 @@
  * scalar path's values. The clamps are eval.c's, as selects.
  *
  * Instruction sets: the block loop is compiled three times on x86-64
- * (baseline SSE2, AVX2, AVX-512F) and chosen per call with
- * __builtin_cpu_supports, which also checks that the OS saves the wide
- * registers; other targets and compilers get the baseline loop. No fused
+ * (baseline, SSE4.2, AVX2) and chosen per call with __builtin_cpu_supports,
+ * which also checks that the OS saves the wide registers; other targets
+ * and compilers get the baseline loop. The baseline x86-64 loop stays
+ * scalar (GCC needs SSE4.2's 64-bit compares for the selects' masks); the
+ * SSE4.2 loop works on 2 lanes and the AVX2 loop on 4. (AVX-512 gave no
+ * gain over AVX2 here: GCC keeps 256-bit vectors for it.) No fused
  * multiply-adds are formed (-ffp-contract=off, pragma for clang), so the
  * three give identical bits, equal to psik_eval's.
  */
@@ -222,17 +225,17 @@ typedef void (*vg_block_fn)(VG_BLOCK_ARGS);
 
 VG_VARIANTS(base, )
 #if PSIK_VG_DISPATCH
+VG_VARIANTS(sse42, __attribute__((target("sse4.2"))))
 VG_VARIANTS(avx2, __attribute__((target("avx2"))))
-VG_VARIANTS(avx512, __attribute__((target("avx512f,prefer-vector-width=512"))))
 #endif
 
 static vg_block_fn pick(const psik_vgc *c)
 {
 #if PSIK_VG_DISPATCH
-    if (__builtin_cpu_supports("avx512f"))
-        return pick_avx512(c);
     if (__builtin_cpu_supports("avx2"))
         return pick_avx2(c);
+    if (__builtin_cpu_supports("sse4.2"))
+        return pick_sse42(c);
 #endif
     return pick_base(c);
 }

@@ -1,0 +1,381 @@
+/* table.c - the tabulated fast path (psik_table_*): theta and ln K of any
+ * model as monotone piecewise cubics in x = ln(suction).
+ *
+ * Build: knots x_j = ln(-h_wet) + j dx, uniform, up to ln(-h_dry). At each
+ * knot psik_eval gives theta, K and their exact slopes in x
+ * (d theta/dx = -s C, d ln K/dx = -s (dK/dh) / K). Cubic Hermite pieces
+ * with exact slopes are O(dx^4); the Fritsch-Carlson (1980) limiter then
+ * scales the two slopes of any interval where alpha^2 + beta^2 > 9
+ * (alpha, beta = slope / secant) and zeroes them where the secant is 0,
+ * which makes every piece monotone, so C >= 0 and dK/dh >= 0 everywhere.
+ * Each interval stores its eight cubic coefficients (theta, ln K), in
+ * t = (x - x_j)/dx, so an evaluation is one log, one exp and two cubics.
+ * C and dK/dh are the exact derivatives of the interpolants (a
+ * mass-conservative scheme that integrates C stays consistent with
+ * theta), not the model's own.
+ *
+ * Error report: the interpolants are compared with psik_eval at 7 points
+ * inside every interval (t = 1/8 ... 7/8); the largest relative errors,
+ * times 1.5 for the peaks between samples, are the reported bounds.
+ * tests/unit/test_table.c checks them with 64 random points per interval.
+ * K below 1e-280 ks is left out of the K bound (ln K is clamped at
+ * ln(1e-300) so that an underflowed K does not poison its neighbours).
+ *
+ * Outside [h_dry, h_wet] (and for NaN, saturated heads) every evaluator
+ * returns psik_eval's values, so a table is never less safe than the model.
+ */
+#include "psik_internal.h"
+#include "fastmath.h"
+
+#include <float.h>
+#include <math.h>
+#include <stdint.h>
+#include <string.h>
+
+#define TABLE_MAGIC 0x7073746bu   /* "pstk" */
+#define TABLE_ALIGN 64
+#define LNK_FLOOR (-690.7755278982137)   /* ln(1e-300) */
+
+struct psik_table {
+    unsigned int magic;
+    unsigned int abi_size;
+    size_t knots;
+    double x0, dx, inv_dx, umax;  /* umax = knots - 1 */
+    double h_dry, h_wet;
+    double tr, dts, ts, ks;
+    double err_theta, err_k;
+    psik_model model;
+    double coef[1];               /* 8 (knots - 1) coefficients */
+};
+
+static size_t header_bytes(void)
+{
+    return offsetof(struct psik_table, coef);
+}
+
+PSIK_API size_t psik_table_knots(double h_dry, double h_wet, double density)
+{
+    double dec;
+    if (!(density > 0.0))
+        density = PSIK_TABLE_DENSITY;
+    if (!(h_dry < h_wet && h_wet < 0.0) || !isfinite(h_dry) || !(density < 1e6))
+        return 0;
+    dec = log10(h_dry / h_wet);
+    if (!(dec * density < 1e8))
+        return 0;
+    return (size_t)ceil(dec * density) + 1;
+}
+
+PSIK_API size_t psik_table_bytes(size_t knots)
+{
+    if (knots < 2 || knots > (size_t)1 << 27)
+        return 0;
+    return header_bytes() + 8 * (knots - 1) * sizeof(double) + TABLE_ALIGN;
+}
+
+/* Knot values of theta and ln K with their slopes in x = ln s. */
+static void knot(const psik_model *m, double s, double *th, double *dth, double *lk, double *dlk)
+{
+    psik_state st;
+    psik_eval(m, -s, &st);
+    *th = st.theta;
+    *dth = -s * st.capacity;
+    if (st.k > m->ks * 1e-300) {
+        *lk = log(st.k);
+        *dlk = -s * st.dk_dh / st.k;
+    } else {
+        *lk = LNK_FLOOR + log(m->ks);
+        *dlk = 0.0;
+    }
+}
+
+/* Fritsch-Carlson on interval slopes d0, d1 with secant delta (decreasing
+ * or increasing data alike). */
+static void limit(double delta, double *d0, double *d1)
+{
+    double a, b, r;
+    if (delta == 0.0 || !isfinite(delta)) {
+        *d0 = 0.0;
+        *d1 = 0.0;
+        return;
+    }
+    a = *d0 / delta;
+    b = *d1 / delta;
+    if (!(a >= 0.0)) { *d0 = 0.0; a = 0.0; }
+    if (!(b >= 0.0)) { *d1 = 0.0; b = 0.0; }
+    r = a * a + b * b;
+    if (r > 9.0) {
+        double tau = 3.0 / sqrt(r);
+        *d0 = tau * a * delta;
+        *d1 = tau * b * delta;
+    }
+}
+
+static void cubic(double f0, double f1, double d0, double d1, double dx, double *c)
+{
+    double df = f1 - f0, m0 = d0 * dx, m1 = d1 * dx;
+    c[0] = f0;
+    c[1] = m0;
+    c[2] = 3.0 * df - 2.0 * m0 - m1;
+    c[3] = m0 + m1 - 2.0 * df;
+}
+
+/* The constants an evaluation reads, copied out of the table so that the
+ * compiler knows the output stores cannot change them. */
+typedef struct tb_par {
+    const double *coef;
+    double x0, inv_dx, umax, tr, ts, ks;
+} tb_par;
+
+static tb_par tb_par_of(const struct psik_table *t)
+{
+    tb_par p;
+    p.coef = t->coef;
+    p.x0 = t->x0;
+    p.inv_dx = t->inv_dx;
+    p.umax = t->umax;
+    p.tr = t->tr;
+    p.ts = t->ts;
+    p.ks = t->ks;
+    return p;
+}
+
+/* The interpolated state at a head inside the table; the same arithmetic
+ * for psik_table_eval and the batch loop. */
+PSIK_FM void interp(const tb_par *t, double h, double *th, double *kk, double *cc, double *dk)
+{
+    double s = -h, x = psik__fm_log(s);
+    double u = (x - t->x0) * t->inv_dx;
+    double uc = psik__fm_sel(u < t->umax, u, t->umax);
+    double j, f, v, dv, lk, dlk, k, inv_s = 1.0 / s;
+    double c0, c1, c2, c3, c4, c5, c6, c7;
+    const double *c = t->coef;
+    uint64_t q;
+    uc = psik__fm_sel(uc > 0.0, uc, 0.0);
+    j = (uc + PSIK_FM_SHIFT) - PSIK_FM_SHIFT;         /* nearest integer */
+    j = psik__fm_sel(j > uc, j - 1.0, j);             /* floor */
+    j = psik__fm_sel(j > t->umax - 1.0, t->umax - 1.0, j);
+    f = uc - j;
+    /* the integer j from the bits of j + 1.5 2^52 (no conversion instruction
+     * needed, so the gathers below vectorise on every x86-64 level) */
+    q = 8 * ((psik__fm_bits(j + PSIK_FM_SHIFT) - psik__fm_bits(PSIK_FM_SHIFT)) & 0xfffffffu);
+    c0 = c[q]; c1 = c[q + 1]; c2 = c[q + 2]; c3 = c[q + 3];
+    c4 = c[q + 4]; c5 = c[q + 5]; c6 = c[q + 6]; c7 = c[q + 7];
+    v = c0 + f * (c1 + f * (c2 + f * c3));
+    dv = c1 + f * (2.0 * c2 + f * (3.0 * c3));
+    lk = c4 + f * (c5 + f * (c6 + f * c7));
+    dlk = c5 + f * (2.0 * c6 + f * (3.0 * c7));
+    k = psik__fm_exp(lk);
+    v = psik__fm_sel(v > t->ts, t->ts, v);
+    v = psik__fm_sel(v < t->tr, t->tr, v);
+    *th = v;
+    *kk = psik__fm_sel(k > t->ks, t->ks, k);
+    *cc = psik__fm_sel(dv < 0.0, -dv * t->inv_dx * inv_s, 0.0);
+    *dk = psik__fm_sel(dlk < 0.0, -dlk * t->inv_dx * inv_s * k, 0.0);
+}
+
+static int inside(const struct psik_table *t, double h)
+{
+    return h >= t->h_dry && h <= t->h_wet;
+}
+
+PSIK_API psik_status psik_table_build(const psik_model *m, double h_dry, double h_wet,
+                                      size_t knots, void *mem, size_t bytes,
+                                      psik_table **table, psik_table_error *err)
+{
+    struct psik_table *t;
+    uintptr_t addr;
+    size_t need = psik_table_bytes(knots), i, pad;
+    double x0, x1, dx, th0, dth0, lk0, dlk0, eth = 0.0, ek = 0.0;
+    tb_par tp;
+    if (table != NULL)
+        *table = NULL;
+    if (m == NULL || psik__family(m->kind) == NULL || mem == NULL || table == NULL)
+        return PSIK_EINVAL;
+    if (knots < 2 || need == 0)
+        return PSIK_EINVAL;
+    if (!(h_dry < h_wet && h_wet < 0.0) || !isfinite(h_dry))
+        return PSIK_EDOMAIN;
+    if (bytes < need)
+        return PSIK_ENOMEM;
+    /* The table covers unsaturated heads only. */
+    if (h_wet >= m->h_sat)
+        h_wet = m->h_sat * (1.0 + 4.0 * DBL_EPSILON);
+    if (!(h_dry < h_wet && h_wet < 0.0))
+        return PSIK_EDOMAIN;
+    addr = (uintptr_t)mem;
+    pad = (TABLE_ALIGN - addr % TABLE_ALIGN) % TABLE_ALIGN;
+    t = (struct psik_table *)(void *)((unsigned char *)mem + pad);
+    memset(t, 0, header_bytes());
+    x0 = log(-h_wet);
+    x1 = log(-h_dry);
+    dx = (x1 - x0) / (double)(knots - 1);
+    t->knots = knots;
+    t->x0 = x0;
+    t->dx = dx;
+    t->inv_dx = 1.0 / dx;
+    t->umax = (double)(knots - 1);
+    t->h_wet = h_wet;
+    t->h_dry = h_dry;
+    t->tr = m->theta_r;
+    t->ts = m->theta_s;
+    t->dts = m->theta_s - m->theta_r;
+    t->ks = m->ks;
+    t->model = *m;
+    /* Knot values, then the limited slopes, then the coefficients. The
+     * coefficient array first holds f, d per knot in slots 0..3 of the
+     * interval that starts there (knot j -> interval j; the last knot's
+     * values go to a small local buffer). */
+    {
+        double last[4];
+        for (i = 0; i < knots; i++) {
+            double *slot = i + 1 < knots ? t->coef + 8 * i : last;
+            double s = exp(x0 + dx * (double)i);
+            if (i == 0) s = -h_wet;
+            if (i + 1 == knots) s = -h_dry;
+            knot(m, s, &slot[0], &slot[1], &slot[2], &slot[3]);
+        }
+        /* limiter, interval by interval, on the shared knot slopes */
+        for (i = 0; i + 1 < knots; i++) {
+            double *a = t->coef + 8 * i;
+            double *b = i + 2 < knots ? t->coef + 8 * (i + 1) : last;
+            limit((b[0] - a[0]) / dx, &a[1], &b[1]);
+            limit((b[2] - a[2]) / dx, &a[3], &b[3]);
+        }
+        /* coefficients, walking forward with the left knot saved */
+        th0 = t->coef[0]; dth0 = t->coef[1]; lk0 = t->coef[2]; dlk0 = t->coef[3];
+        for (i = 0; i + 1 < knots; i++) {
+            double *c = t->coef + 8 * i;
+            const double *b = i + 2 < knots ? t->coef + 8 * (i + 1) : last;
+            double th1 = b[0], dth1 = b[1], lk1 = b[2], dlk1 = b[3];
+            cubic(th0, th1, dth0, dth1, dx, c);
+            cubic(lk0, lk1, dlk0, dlk1, dx, c + 4);
+            th0 = th1; dth0 = dth1; lk0 = lk1; dlk0 = dlk1;
+        }
+    }
+    t->magic = TABLE_MAGIC;
+    t->abi_size = (unsigned int)sizeof(psik_model);
+    /* error estimate */
+    tp = tb_par_of(t);
+    for (i = 0; i + 1 < knots; i++) {
+        int q;
+        for (q = 1; q < 8; q++) {
+            double x = x0 + dx * ((double)i + q / 8.0), h = -exp(x);
+            double th, kk, cc, dk, e;
+            psik_state st;
+            if (!inside(t, h))
+                continue;
+            interp(&tp, h, &th, &kk, &cc, &dk);
+            psik_eval(m, h, &st);
+            e = fabs(th - st.theta) / st.theta;
+            if (e > eth) eth = e;
+            if (st.k > m->ks * 1e-280) {
+                e = fabs(kk - st.k) / st.k;
+                if (e > ek) ek = e;
+            }
+        }
+    }
+    t->err_theta = 1.5 * eth;
+    t->err_k = 1.5 * ek;
+    if (err != NULL) {
+        err->theta_rel = t->err_theta;
+        err->k_rel = t->err_k;
+    }
+    *table = t;
+    return PSIK_OK;
+}
+
+static int valid(const psik_table *t)
+{
+    return t != NULL && t->magic == TABLE_MAGIC && t->abi_size == sizeof(psik_model);
+}
+
+PSIK_API void psik_table_eval(const psik_table *t, double h, psik_state *out)
+{
+    double th, kk, cc, dk;
+    tb_par tp;
+    if (out == NULL)
+        return;
+    if (!valid(t)) {
+        out->se = out->theta = out->kr = out->k = out->capacity = out->dk_dh = NAN;
+        return;
+    }
+    if (!inside(t, h)) {
+        psik_eval(&t->model, h, out);
+        return;
+    }
+    tp = tb_par_of(t);
+    interp(&tp, h, &th, &kk, &cc, &dk);
+    out->theta = th;
+    out->se = (th - t->tr) / t->dts;
+    out->k = kk;
+    out->kr = kk / t->ks;
+    out->capacity = cc;
+    out->dk_dh = dk;
+}
+
+#define TB_ARGS const tb_par *tq, size_t n, const double *restrict h, \
+    double *restrict th, double *restrict kk, double *restrict cc, double *restrict dk
+PSIK_FM void tb_body(TB_ARGS)
+{
+    const tb_par t = *tq;
+    size_t i;
+    for (i = 0; i < n; i++) {
+        double a, b, c, d;
+        interp(&t, h[i], &a, &b, &c, &d);
+        th[i] = a;
+        kk[i] = b;
+        cc[i] = c;
+        dk[i] = d;
+    }
+}
+static void tb_base(TB_ARGS) { tb_body(tq, n, h, th, kk, cc, dk); }
+#if defined(__x86_64__) && defined(__GNUC__) && !defined(PSIK_NO_DISPATCH) && \
+    !defined(PSIK_SINGLE)
+__attribute__((target("avx2"))) static void tb_avx2(TB_ARGS) { tb_body(tq, n, h, th, kk, cc, dk); }
+__attribute__((target("sse4.2"))) static void tb_sse42(TB_ARGS) { tb_body(tq, n, h, th, kk, cc, dk); }
+#  define TB_PICK() (__builtin_cpu_supports("avx2") ? tb_avx2 : \
+                     __builtin_cpu_supports("sse4.2") ? tb_sse42 : tb_base)
+#else
+#  define TB_PICK() tb_base
+#endif
+
+PSIK_API void psik_table_eval_batch(const psik_table *t, size_t count, const double *h,
+                                    double *theta, double *k, double *capacity,
+                                    double *dk_dh)
+{
+    enum { B = 256 };
+    double s_th[B], s_k[B], s_c[B], s_dk[B];
+    void (*fn)(TB_ARGS) = TB_PICK();
+    size_t i0;
+    tb_par tp;
+    if (!valid(t) || h == NULL) {
+        size_t i;
+        for (i = 0; i < count; i++) {
+            if (theta) theta[i] = NAN;
+            if (k) k[i] = NAN;
+            if (capacity) capacity[i] = NAN;
+            if (dk_dh) dk_dh[i] = NAN;
+        }
+        return;
+    }
+    tp = tb_par_of(t);
+    for (i0 = 0; i0 < count; i0 += B) {
+        size_t n = count - i0 < B ? count - i0 : B, i;
+        double *th = theta ? theta + i0 : s_th;
+        double *kk = k ? k + i0 : s_k;
+        double *cc = capacity ? capacity + i0 : s_c;
+        double *dk = dk_dh ? dk_dh + i0 : s_dk;
+        fn(&tp, n, h + i0, th, kk, cc, dk);
+        for (i = 0; i < n; i++) {
+            if (!inside(t, h[i0 + i])) {
+                psik_state st;
+                psik_eval(&t->model, h[i0 + i], &st);
+                th[i] = st.theta;
+                kk[i] = st.k;
+                cc[i] = st.capacity;
+                dk[i] = st.dk_dh;
+            }
+        }
+    }
+}
