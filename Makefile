@@ -146,6 +146,31 @@ uninstall:
 	    '$(DESTDIR)$(PCDIR)/psik.pc' '$(DESTDIR)$(DATADIR)/fortran/psik.f90' \
 	    $(if $(CLI_SRC),'$(DESTDIR)$(BINDIR)/psik')
 
+# ---------------------------------------------------------------- threads
+# The thread test needs pthreads; make check-tsan runs it under
+# ThreadSanitizer (clang when present, else $(CC); CI calls this target).
+$(B)/tests/test_threads $(B)/asan/test_threads: LDLIBS += -pthread
+TSAN_CC ?= $(shell command -v clang >/dev/null 2>&1 && echo clang || echo $(CC))
+.PHONY: check-tsan
+check-tsan: $(B)/tsan/test_threads
+	@TSAN_OPTIONS="halt_on_error=1" $(B)/tsan/test_threads
+
+$(B)/tsan/test_threads: tests/unit/test_threads.c $(T_HELP) $(LIB_SRC) tests/unit/*.h include/psik.h lib/*.h
+	@mkdir -p $(dir $@)
+	$(TSAN_CC) -std=$(STD) -O1 -g -fsanitize=thread -pthread -Iinclude -Ilib -Itests/unit \
+	    -o $@ $< $(T_HELP) $(LIB_SRC) -lcmocka -lm
+
+# ---------------------------------------------------------------- bench
+# Speed as ratios to a pow()-based baseline in the same process; never
+# fails on speed (tests/bench/bench.c says how it measures).
+BENCH_SRC := $(sort $(wildcard tests/bench/*.c))
+bench: $(B)/bench/psik_bench
+	@$(B)/bench/psik_bench
+
+$(B)/bench/psik_bench: $(BENCH_SRC) tests/bench/bench.h $(LIB_A)
+	@mkdir -p $(dir $@)
+	$(CC) -std=$(STD) $(OPT) $(WARN) -Iinclude -o $@ $(BENCH_SRC) $(LIB_A) $(LDLIBS)
+
 # ---------------------------------------------------------------- demo, docs
 # The main job: fit every model to the bundled drainage experiment, rank,
 # plot, tabulate (examples/demo.sh; outputs in $(B)/demo). vg-demo runs the

@@ -138,6 +138,36 @@ PSIK_FM int vg_core(const psik_vgc *c, double s, int half, int model,
     return (p >= DBL_MIN) & (p <= DBL_MAX) & (th >= -700.0) & (th <= 700.0);
 }
 
+/* Se alone with exactly the operations of vg_core, so that psik_se and
+ * psik_theta give the bits psik_eval gives (the contract in psik.h). */
+PSIK_HIDDEN int psik__vg_se_fast(const psik_vgc *c, double s, double *se)
+{
+    const double n = c->n, m = c->m, k = c->k;
+    double p = c->alpha * s;
+    double lph, lpl, th, tl, a, b, kh, kl, mb, e1h, e1l, t1, t2, S;
+    int wet;
+    if (c->model != PSIK_VGC_MUALEM)
+        return 0;
+    lph = psik__fm_log_dd(p, &lpl);
+    psik__fm_mul_dd(n, lph, lpl, &th, &tl);
+    if (!((p >= DBL_MIN) & (p <= DBL_MAX) & (th >= -700.0) & (th <= 700.0)))
+        return 0;
+    wet = th <= 0.0;
+    t1 = -th;
+    t2 = -tl;
+    a = psik__fm_exp_dd(psik__fm_sel(wet, th, t1), psik__fm_sel(wet, tl, t2));
+    b = psik__fm_log1p_fin(a);
+    psik__fm_mul_dd(k, lph, lpl, &kh, &kl);
+    mb = m * b;
+    t1 = -kh;
+    psik__fm_two_sum(psik__fm_sel(wet, 0.0, t1), -mb, &e1h, &t1);
+    t2 = -kl;
+    e1l = t1 + psik__fm_sel(wet, 0.0, t2);
+    S = psik__fm_exp_dd(e1h, e1l);
+    *se = S;
+    return 1;
+}
+
 PSIK_HIDDEN int psik__vg_point_fast(const psik_vgc *c, double s, psik_point *out)
 {
     double se, kr, dse, dkr;

@@ -344,6 +344,16 @@ static double vg_se(const psik_model *m, double s)
     }
 }
 
+/* Se through the fused core (the same bits as psik_eval's Se). */
+static double vgm_se(const psik_model *m, double s)
+{
+    double se;
+    psik_vgc c = vg_coef(m, PSIK_VGC_MUALEM);
+    if (psik__vg_se_fast(&c, s, &se))
+        return se;
+    return vg_se(m, s);
+}
+
 static double vgm_kr(const psik_model *m, double s)
 {
     psik_point out;
@@ -368,7 +378,7 @@ const psik_family psik__fam_vgm = {
     .check = vgm_check,
     .prepare = vgm_prepare,
     .point = vgm_point,
-    .se = vg_se,
+    .se = vgm_se,
     .kr = vgm_kr,
     .point_se = vgm_point_se,
     .suction = vg_suction,
