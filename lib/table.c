@@ -361,7 +361,7 @@ PSIK_API void psik_table_eval_batch(const psik_table *t, size_t count, const dou
     }
     tp = tb_par_of(t);
     for (i0 = 0; i0 < count; i0 += B) {
-        size_t n = count - i0 < B ? count - i0 : B, i;
+        size_t n = count - i0 < (size_t)B ? count - i0 : (size_t)B, i;
         double *th = theta ? theta + i0 : s_th;
         double *kk = k ? k + i0 : s_k;
         double *cc = capacity ? capacity + i0 : s_c;
