@@ -555,7 +555,15 @@ PSIK_API size_t psik_table_bytes(size_t knots);
  * relative errors seen, times 1.5 for peaks between the samples, are
  * written to @p err (may be NULL). The model is copied: @p m need not
  * outlive the table.
+ * @param m      the model (any kind)
+ * @param h_dry  driest head of the range (most negative)
+ * @param h_wet  wettest head of the range, h_dry < h_wet < 0
+ * @param knots  number of knots, at least 2 (psik_table_knots() gives the
+ *               number for a density)
+ * @param mem    caller memory the table is built in
+ * @param bytes  size of @p mem
  * @param table  out: the table, inside @p mem (NULL on failure)
+ * @param err    out (may be NULL): the error bounds
  * @return PSIK_OK; PSIK_EINVAL (NULL pointer, invalid model, knots < 2);
  *         PSIK_EDOMAIN (not h_dry < h_wet < 0, or infinite h_dry);
  *         PSIK_ENOMEM (@p bytes too small).
