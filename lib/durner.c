@@ -73,7 +73,7 @@ static void mode_add(const double *a, int i, double s, dur_sum *acc)
         ym = pow(p, k) * S;                   /* y^m = p^(m n) Se */
         g = ym < 0.5 ? 1.0 - ym : -expm1(mm * log(y));
         dls = k * alpha * pow(p, n - 1.0) * r;
-        dg = k * alpha * pow(p, k - 1.0) * S * r;
+        dg = k * alpha * pow(p, k - 1.0) * exp(-(mm + 1.0) * l1);   /* S r in one */
         ky = k * y;
         kr_ = k * ym * r;
     } else if (p < INFINITY) {
@@ -83,7 +83,7 @@ static void mode_add(const double *a, int i, double s, dur_sum *acc)
         cS = S > 0.25 ? -expm1(-mm * (n * log(p) + b)) : 1.0 - S;
         g = -expm1(-mm * b);
         dls = k * alpha * y / p;
-        dg = k * alpha * ym * (u * y) / p;
+        dg = k * alpha * (u * exp(-(mm + 1.0) * b)) / p;           /* ym u y in one */
         ky = k * y;
         kr_ = k * ym * (u * y);
     } else {
