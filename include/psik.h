@@ -344,9 +344,10 @@ PSIK_API const char *psik_preset_name(int i);
  *   A weight of 0 drops the point: it is not counted in N.
  *
  * @par Memory and threads
- * psik_fit() makes one allocation (malloc) of about
- * (6 + 3 p) N + 400 (p + 1) doubles for N points and p parameters and frees
- * it before returning (PSIK_ENOMEM when it fails). No global state.
+ * psik_fit() makes one allocation (malloc) of about (9 + 3 p) N + 18 S
+ * doubles for N points, p parameters and S start samples (S <= 4000), and
+ * frees it before returning (PSIK_ENOMEM when it fails); psik_fit_jacobian()
+ * likewise allocates 6 N doubles. No global state.
  */
 /**@{*/
 
