@@ -38,5 +38,7 @@ int main(void)
     F(psik_fit_result, n_k); F(psik_fit_result, n_free); F(psik_fit_result, dof);
     F(psik_fit_result, iterations); F(psik_fit_result, starts);
     F(psik_fit_result, evaluations); F(psik_fit_result, stop); F(psik_fit_result, note);
+    S(psik_table_error);
+    F(psik_table_error, theta_rel); F(psik_table_error, k_rel);
     return 0;
 }

@@ -26,7 +26,8 @@ try:  # NumPy is optional
 except ImportError:  # pragma: no cover - exercised by the no-NumPy test run
     _np = None
 
-__all__ = ["Model", "State", "FitResult", "fit", "rank", "t_quantile", "kinds", "kind_title", "param_names", "param_range",
+__all__ = ["Model", "State", "Table", "FitResult", "fit", "rank", "t_quantile", "preset",
+           "preset_names", "kinds", "kind_title", "param_names", "param_range",
            "version", "strerror", "library_path", "OK", "EINVAL", "EDOMAIN", "ENOCONV",
            "EDATA", "ENOMEM", "EABI"]
 
@@ -129,6 +130,36 @@ def _as_c_array(x):
 
 def _ptr(a):
     return a.ctypes.data_as(_lib.c_double_p)
+
+
+def preset_names():
+    """Texture classes psik.preset() knows, in the library's order."""
+    out = []
+    if hasattr(_c, "psik_preset_name"):
+        i = 0
+        while True:
+            name = _c.psik_preset_name(i)
+            if name is None:
+                break
+            out.append(_s(name))
+            i += 1
+    return out
+
+
+def preset(texture):
+    """The class-average van Genuchten-Mualem model of a USDA texture class
+    (psik_preset: Carsel & Parrish 1988 means, cm and cm/day)."""
+    if not hasattr(_c, "psik_preset"):
+        raise RuntimeError("psik: the library at %s has no presets" % library_path())
+    m = Model.__new__(Model)
+    m._m = PsikModel()
+    st = _c.psik_preset(ctypes.byref(m._m), str(texture).encode())
+    if st != OK:
+        raise ValueError("unknown texture class %r; the classes are: %s"
+                         % (texture, ", ".join(preset_names())))
+    m._kind = m._m.kind
+    m._names = param_names(m._kind)
+    return m
 
 
 # The outputs psik_eval_batch computes, by position after h.
@@ -333,6 +364,97 @@ class Model(object):
                 res.append(State(st.se, st.theta, st.kr, st.k, st.capacity, st.dk_dh))
             return res
         _c.psik_eval(m, v, ctypes.byref(st))
+        return State(st.se, st.theta, st.kr, st.k, st.capacity, st.dk_dh)
+
+
+# ---------------------------------------------------------------- tables
+
+class Table(object):
+    """An interpolation table of one model over a head range (psik_table_*):
+    theta and ln K as monotone cubics in ln(-h), about 1e-9 and 1e-7
+    relative at the default density (bounds measured at build time are in
+    theta_rel and k_rel). Methods theta, k, capacity, dk_dh and eval take a
+    float, a sequence or an array like Model's."""
+
+    __slots__ = ("_mem", "_t", "knots", "theta_rel", "k_rel", "model")
+
+    def __init__(self, model, h_dry, h_wet, density=None, knots=None):
+        if not hasattr(_c, "psik_table_build"):
+            raise RuntimeError("psik: the library at %s has no tables" % library_path())
+        if not isinstance(model, Model):
+            raise TypeError("psik.Table needs a psik.Model")
+        h_dry, h_wet = float(h_dry), float(h_wet)
+        if knots is None:
+            knots = _c.psik_table_knots(h_dry, h_wet, 0.0 if density is None else float(density))
+            if knots == 0:
+                raise ValueError("invalid table range h_dry = %g, h_wet = %g (need h_dry < h_wet < 0)"
+                                 % (h_dry, h_wet))
+        knots = int(knots)
+        nbytes = _c.psik_table_bytes(knots)
+        if nbytes == 0:
+            raise ValueError("a table needs 2 to 2^27 knots (got %d)" % knots)
+        self._mem = ctypes.create_string_buffer(nbytes)
+        self._t = ctypes.c_void_p()
+        err = _lib.PsikTableError()
+        st = _c.psik_table_build(ctypes.byref(model.c_model), h_dry, h_wet, knots,
+                                 ctypes.cast(self._mem, ctypes.c_void_p), nbytes,
+                                 ctypes.byref(self._t), ctypes.byref(err))
+        if st != OK:
+            raise ValueError("psik_table_build: %s (h_dry = %g, h_wet = %g, %d knots)"
+                             % (strerror(st), h_dry, h_wet, knots))
+        self.knots = knots
+        self.theta_rel, self.k_rel = err.theta_rel, err.k_rel
+        self.model = model
+
+    def _call(self, name, x):
+        pos = _BATCH[name]
+        if _is_array(x):
+            a = _as_c_array(x)
+            out = _np.empty(a.shape, dtype=_np.float64)
+            outs = [None, None, None, None]
+            outs[pos] = _ptr(out)
+            _c.psik_table_eval_batch(self._t, a.size, _ptr(a), *outs)
+            return out
+        if isinstance(x, (str, bytes)):
+            raise TypeError("psik: expected a number, a sequence of numbers or an array, got %r"
+                            % (x,))
+        try:
+            v = float(x)
+        except TypeError:
+            vals = [float(t) for t in x]
+            n = len(vals)
+            if n == 0:
+                return []
+            h = (ctypes.c_double * n)(*vals)
+            out = (ctypes.c_double * n)()
+            outs = [None, None, None, None]
+            outs[pos] = out
+            _c.psik_table_eval_batch(self._t, n, h, *outs)
+            return list(out)
+        st = PsikState()
+        _c.psik_table_eval(self._t, v, ctypes.byref(st))
+        return getattr(st, name)
+
+    def theta(self, h):
+        """Water content from the table."""
+        return self._call("theta", h)
+
+    def k(self, h):
+        """Conductivity from the table."""
+        return self._call("k", h)
+
+    def capacity(self, h):
+        """d theta / d h of the table's interpolant."""
+        return self._call("capacity", h)
+
+    def dk_dh(self, h):
+        """d K / d h of the table's interpolant."""
+        return self._call("dk_dh", h)
+
+    def eval(self, h):
+        """All values at one head from the table, as a State."""
+        st = PsikState()
+        _c.psik_table_eval(self._t, float(h), ctypes.byref(st))
         return State(st.se, st.theta, st.kr, st.k, st.capacity, st.dk_dh)
 
 

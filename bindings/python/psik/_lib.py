@@ -113,10 +113,16 @@ class PsikFitResult(ctypes.Structure):
     ]
 
 
+class PsikTableError(ctypes.Structure):
+    """struct psik_table_error: bounds reported by psik_table_build."""
+    _fields_ = [("theta_rel", ctypes.c_double), ("k_rel", ctypes.c_double)]
+
+
 #: ctypes mirror of each public struct, by C name (checked by the tests
 #: field by field against tests/abi/layout.c).
 STRUCTS = {"psik_model": PsikModel, "psik_state": PsikState, "psik_fit_data": PsikFitData,
-           "psik_fit_options": PsikFitOptions, "psik_fit_result": PsikFitResult}
+           "psik_fit_options": PsikFitOptions, "psik_fit_result": PsikFitResult,
+           "psik_table_error": PsikTableError}
 
 
 def _candidates():
@@ -185,6 +191,18 @@ def _declare(lib):
     _fn(lib, "psik_eval", None, [M, d, ctypes.POINTER(PsikState)])
     _fn(lib, "psik_eval_batch", None,
         [M, ctypes.c_size_t, c_double_p, c_double_p, c_double_p, c_double_p, c_double_p])
+    if hasattr(lib, "psik_preset"):
+        _fn(lib, "psik_preset", i, [M, cp])
+        _fn(lib, "psik_preset_name", cp, [i])
+    if hasattr(lib, "psik_table_build"):
+        sz, vp = ctypes.c_size_t, ctypes.c_void_p
+        _fn(lib, "psik_table_knots", sz, [d, d, d])
+        _fn(lib, "psik_table_bytes", sz, [sz])
+        _fn(lib, "psik_table_build", i, [M, d, d, sz, vp, sz, ctypes.POINTER(vp),
+                                         ctypes.POINTER(PsikTableError)])
+        _fn(lib, "psik_table_eval", None, [vp, d, ctypes.POINTER(PsikState)])
+        _fn(lib, "psik_table_eval_batch", None,
+            [vp, sz, c_double_p, c_double_p, c_double_p, c_double_p, c_double_p])
     # fitting (present from library 0.1.0 on; absent in older builds)
     if hasattr(lib, "psik_fit"):
         _fn(lib, "psik_fit_defaults", None, [ctypes.POINTER(PsikFitOptions)])

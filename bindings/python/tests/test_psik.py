@@ -344,6 +344,46 @@ class Arrays(unittest.TestCase):
             self.assertEqual(tuple(float(x[i]) for x in st), tuple(m.eval(h)))
 
 
+class PresetsAndTables(unittest.TestCase):
+    def test_presets(self):
+        names = psik.preset_names()
+        self.assertEqual(len(names), 12)             # USDA texture classes
+        self.assertEqual(names[0], "sand")
+        loam = psik.preset("loam")
+        # Carsel & Parrish (1988) loam class mean (from memory), as in C psik_preset
+        want = dict(LOAM, l=0.5)
+        for k, v in want.items():
+            self.assertAlmostEqual(loam.params[k], v, places=12, msg=k)
+        c = _lib.PsikModel()
+        self.assertEqual(psik._c.psik_preset(ctypes.byref(c), b"Silty_Clay_Loam"), psik.OK)
+        self.assertEqual(bytes(psik.preset("silty clay loam").c_model), bytes(c))
+        with self.assertRaisesRegex(ValueError, "unknown texture class 'peat'"):
+            psik.preset("peat")
+
+    def test_table_within_its_bounds(self):
+        m = psik.Model("vgm", **LOAM)
+        t = psik.Table(m, -1e5, -0.01)
+        worst_t = worst_k = 0.0
+        # between the knots (uniform in ln suction, 200 per decade): offset 0.37 of a step
+        hs = [-0.01 * 10 ** ((i + 0.37) / 50.0) for i in range(0, 350)]
+        for h in hs:
+            worst_t = max(worst_t, rel(t.theta(h), m.theta(h)))
+            worst_k = max(worst_k, rel(t.k(h), m.k(h)))
+        print("\n# table (%d knots) vs model over %d heads: theta %.3g (bound %.3g), K %.3g (bound %.3g)"
+              % (t.knots, len(hs), worst_t, t.theta_rel, worst_k, t.k_rel))
+        self.assertLessEqual(worst_t, t.theta_rel)
+        self.assertLessEqual(worst_k, t.k_rel)
+        self.assertLess(t.theta_rel, 1e-9)
+        self.assertLess(t.k_rel, 1e-7)
+        self.assertEqual(t.k(hs[:20]), [t.k(h) for h in hs[:20]])   # batch = single, bit for bit
+        self.assertEqual(t.eval(-50.0).capacity, t.capacity(-50.0))
+        self.assertEqual(t.theta(1.0), 0.43)                          # saturated: psik_eval's values
+        if np is not None:
+            self.assertEqual(t.dk_dh(np.array(hs[:20])).tolist(), [t.dk_dh(h) for h in hs[:20]])
+        with self.assertRaisesRegex(ValueError, "invalid table range"):
+            psik.Table(m, -0.01, -1e5)
+
+
 FIT_HEADS = [-1.0, -3.0, -10.0, -20.0, -33.0, -60.0, -100.0, -200.0, -330.0, -1000.0,
              -3000.0, -15000.0]
 
