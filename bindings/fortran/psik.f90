@@ -15,7 +15,10 @@
 !>   another layout gets PSIK_EABI instead of a corrupted model.
 !> - Functions returning C strings return character(len=:), allocatable
 !>   ("" for NULL); psik_check writes its message into a character variable.
-!> - psik_eval_batch takes optional output arrays (absent = NULL in C).
+!> - psik_eval_batch and psik_table_eval_batch take optional output arrays
+!>   (absent = NULL in C). A table lives in caller memory: allocate an
+!>   integer(c_int8_t) target array of psik_table_bytes(knots) bytes, pass
+!>   c_loc of it to psik_table_build and keep it while the table is used.
 module psik
   use, intrinsic :: iso_c_binding
   implicit none
@@ -48,6 +51,14 @@ module psik
   type, bind(c) :: psik_state
      real(c_double) :: se, theta, kr, k, capacity, dk_dh
   end type psik_state
+
+  !> struct psik_table_error: bounds reported by psik_table_build.
+  type, bind(c) :: psik_table_error
+     real(c_double) :: theta_rel, k_rel
+  end type psik_table_error
+
+  !> Default knot density of a table (knots per decade of suction).
+  real(c_double), parameter :: PSIK_TABLE_DENSITY = 200d0
 
   interface
      function psik_strerror_c(s) bind(c, name="psik_strerror") result(p)
@@ -210,9 +221,82 @@ module psik
        real(c_double), intent(in) :: h(*)
        real(c_double), intent(out), optional :: theta(*), k(*), capacity(*), dk_dh(*)
      end subroutine
+
+     function psik_preset_c(m, texture) bind(c, name="psik_preset") result(st)
+       import :: psik_model, c_int, c_char
+       type(psik_model), intent(inout) :: m
+       character(kind=c_char), intent(in) :: texture(*)
+       integer(c_int) :: st
+     end function
+     function psik_preset_name_c(i) bind(c, name="psik_preset_name") result(p)
+       import :: c_int, c_ptr
+       integer(c_int), value :: i
+       type(c_ptr) :: p
+     end function
+
+     !> Number of knots for a table over [h_dry, h_wet] at `density` knots
+     !> per decade (0: PSIK_TABLE_DENSITY); 0 for an invalid range.
+     function psik_table_knots(h_dry, h_wet, density) bind(c, name="psik_table_knots") result(n)
+       import :: c_double, c_size_t
+       real(c_double), value :: h_dry, h_wet, density
+       integer(c_size_t) :: n
+     end function
+     !> Bytes of memory a table of `knots` knots needs.
+     function psik_table_bytes(knots) bind(c, name="psik_table_bytes") result(n)
+       import :: c_size_t
+       integer(c_size_t), value :: knots
+       integer(c_size_t) :: n
+     end function
+     !> Build a table of m in caller memory `mem` (c_loc of a byte array of
+     !> at least psik_table_bytes(knots) bytes); `table` receives its handle.
+     function psik_table_build(m, h_dry, h_wet, knots, mem, bytes, table, err) &
+          bind(c, name="psik_table_build") result(st)
+       import :: psik_model, psik_table_error, c_double, c_size_t, c_ptr, c_int
+       type(psik_model), intent(in) :: m
+       real(c_double), value :: h_dry, h_wet
+       integer(c_size_t), value :: knots
+       type(c_ptr), value :: mem
+       integer(c_size_t), value :: bytes
+       type(c_ptr), intent(out) :: table
+       type(psik_table_error), intent(out), optional :: err
+       integer(c_int) :: st
+     end function
+     !> All values at head h from a table.
+     subroutine psik_table_eval(table, h, out) bind(c, name="psik_table_eval")
+       import :: psik_state, c_double, c_ptr
+       type(c_ptr), value :: table
+       real(c_double), value :: h
+       type(psik_state), intent(out) :: out
+     end subroutine
+     !> psik_table_eval over count heads; absent outputs are skipped.
+     subroutine psik_table_eval_batch(table, count, h, theta, k, capacity, dk_dh) &
+          bind(c, name="psik_table_eval_batch")
+       import :: c_double, c_size_t, c_ptr
+       type(c_ptr), value :: table
+       integer(c_size_t), value :: count
+       real(c_double), intent(in) :: h(*)
+       real(c_double), intent(out), optional :: theta(*), k(*), capacity(*), dk_dh(*)
+     end subroutine
   end interface
 
 contains
+
+  !> The van Genuchten-Mualem model of a USDA texture class (C psik_preset).
+  function psik_preset(m, texture) result(st)
+    type(psik_model), intent(inout) :: m
+    character(len=*), intent(in) :: texture
+    integer(c_int) :: st
+    character(kind=c_char, len=len_trim(texture) + 1), target :: c
+    c = f_to_c(texture)
+    st = psik_preset_c(m, c)
+  end function
+
+  !> Name of preset i (0-based); "" when out of range.
+  function psik_preset_name(i) result(text)
+    integer(c_int), intent(in) :: i
+    character(len=:), allocatable :: text
+    text = c_to_f(psik_preset_name_c(i))
+  end function
 
   !> Copy a NUL-terminated C string into a Fortran string ("" for NULL).
   function c_to_f(p) result(s)

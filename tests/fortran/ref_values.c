@@ -2,7 +2,8 @@
  * kind the library has, a parameter vector a quarter of the way through each
  * plausible range, then psik_* at a set of heads (%.17e round-trips doubles):
  * the single functions, psik_eval and psik_eval_batch (theta, k, C, dK/dh).
- * First line: psik_check's message for an invalid vgm vector. */
+ * First line: psik_check's message for an invalid vgm vector; then the
+ * "silt loam" preset's parameters and a table of it (knots, bounds, values). */
 #include <stdio.h>
 #include "psik.h"
 
@@ -18,6 +19,27 @@ int main(void)
     int kind, i, j;
     psik_check(PSIK_VGM, bad, msg, sizeof msg);
     printf("%s\n", msg);
+    {   /* the "silt loam" preset, then a table of it over [-1e5, -0.01] */
+        static const double th[5] = { -0.0317, -1.7, -42.0, -777.0, -31000.0 };
+        static unsigned char mem[1 << 17];
+        double par[PSIK_MAX_PARAMS], o[4][5];
+        psik_model m;
+        psik_table *t;
+        psik_table_error err;
+        size_t kn = psik_table_knots(-1e5, -0.01, 0.0);
+        int np;
+        if (psik_preset(&m, "silt loam") != PSIK_OK || psik_table_bytes(kn) > sizeof mem
+            || psik_table_build(&m, -1e5, -0.01, kn, mem, sizeof mem, &t, &err) != PSIK_OK)
+            return 1;
+        np = psik_model_params(&m, par);
+        printf("%d\n", np);
+        for (j = 0; j < np; j++)
+            printf("%.17e\n", par[j]);
+        printf("%u %.17e %.17e\n", (unsigned)kn, err.theta_rel, err.k_rel);
+        psik_table_eval_batch(t, 5, th, o[0], o[1], o[2], o[3]);
+        for (i = 0; i < 5; i++)
+            printf("%.17e %.17e %.17e %.17e %.17e\n", th[i], o[0][i], o[1][i], o[2][i], o[3][i]);
+    }
     for (kind = 1; kind < 64; kind++) {
         double par[PSIK_MAX_PARAMS];
         psik_model m;

@@ -20,6 +20,11 @@ program test_binding
   integer(c_int), parameter :: consts(10) = [PSIK_VGM, PSIK_VGM_AE, PSIK_VG_FREE_M, &
        PSIK_VGB, PSIK_BCM, PSIK_BCB, PSIK_KOSUGI, PSIK_DURNER2, PSIK_DURNER3, PSIK_GARDNER]
   integer :: nknown
+  integer(c_size_t) :: knots
+  integer(c_int8_t), allocatable, target :: mem(:)
+  type(c_ptr) :: tab
+  type(psik_table_error) :: terr, terr_c
+  real(c_double) :: trow(5), tb(5), tcap(5), tref(5, 4)
 
   ! --- layout (ABI 1)
   base = transfer(c_loc(m), base)
@@ -49,17 +54,21 @@ program test_binding
   ! --- building
   par = 0
   par(1:6) = [0.078d0, 0.43d0, 0.036d0, 1.56d0, 24.96d0, 0.5d0]
-  call check(psik_init(m, PSIK_VGM, par) == PSIK_OK, "psik_init(vgm loam)")
+  ios = psik_init(m, PSIK_VGM, par)
+  call check(ios == PSIK_OK, "psik_init(vgm loam)")
   call check(m%abi_size == 304 .and. m%abi_version == PSIK_ABI_VERSION .and. m%npar == 6, &
        "library records the layout in the model")
-  call check(psik_init_vgm(m2, 0.078d0, 0.43d0, 0.036d0, 1.56d0, 24.96d0) == PSIK_OK .and. &
-       psik_theta(m2, -100d0) == psik_theta(m, -100d0), "psik_init_vgm = psik_init with l = 0.5")
+  ! (each call that writes a model is its own statement: Fortran does not
+  ! order the operands of an expression)
+  ios = psik_init_vgm(m2, 0.078d0, 0.43d0, 0.036d0, 1.56d0, 24.96d0)
+  call check(ios == PSIK_OK .and. psik_theta(m2, -100d0) == psik_theta(m, -100d0), &
+       "psik_init_vgm = psik_init with l = 0.5")
   call check(psik_param_count(PSIK_VGM) == 6 .and. psik_param_name(PSIK_VGM, 2_c_int) == "alpha" &
        .and. psik_param_index(PSIK_VGM, "ks") == 4 .and. psik_param_name(PSIK_VGM, 6_c_int) == "", &
        "parameter names, 0-based as in C")
   m2%kind = -7
-  call check(psik_init_abi(m2, PSIK_VGM, par, 2_c_int, c_sizeof(m2)) == PSIK_EABI .and. &
-       m2%kind == -7, "psik_init_abi mismatch: PSIK_EABI, model untouched")
+  ios = psik_init_abi(m2, PSIK_VGM, par, 2_c_int, c_sizeof(m2))
+  call check(ios == PSIK_EABI .and. m2%kind == -7, "psik_init_abi mismatch: PSIK_EABI, model untouched")
 
   ! --- values against C
   call get_command_argument(1, path)
@@ -70,8 +79,36 @@ program test_binding
   par(1:6) = [0.078d0, 0.43d0, 0.036d0, 0.9d0, 24.96d0, 0.5d0]
   call check(psik_check(PSIK_VGM, par, fmsg) == PSIK_EDOMAIN .and. fmsg == cmsg, &
        "psik_check message = C's: " // trim(fmsg))
-  call check(psik_init(m2, PSIK_VGM, par) == PSIK_EDOMAIN .and. m2%kind == 0, &
-       "psik_init refuses n = 0.9 and clears the model")
+  ios = psik_init(m2, PSIK_VGM, par)
+  call check(ios == PSIK_EDOMAIN .and. m2%kind == 0, "psik_init refuses n = 0.9 and clears the model")
+
+  ! --- presets and tables against C
+  read(u, *) np
+  par = 0
+  read(u, *) par(1:np)
+  ios = psik_preset(m2, "Silt_Loam")    ! (separate statement: m2 is read below)
+  call check(ios == PSIK_OK .and. m2%npar == np .and. all(m2%par(1:np) == par(1:np)), &
+       "psik_preset('Silt_Loam') = C's silt loam")
+  call check(psik_preset_name(0_c_int) == "sand" .and. psik_preset_name(99_c_int) == "" .and. &
+       psik_preset(m, "peat") == PSIK_EINVAL, "preset names and an unknown class")
+  read(u, *) knots, terr_c%theta_rel, terr_c%k_rel
+  call check(psik_table_knots(-1d5, -0.01d0, 0d0) == knots, "psik_table_knots = C's")
+  allocate(mem(psik_table_bytes(knots)))
+  ios = psik_table_build(m2, -1d5, -0.01d0, knots, c_loc(mem), int(size(mem), c_size_t), tab, terr)
+  call check(ios == PSIK_OK .and. terr%theta_rel == terr_c%theta_rel .and. &
+       terr%k_rel == terr_c%k_rel, "psik_table_build in Fortran memory, same error bounds as C")
+  ndiff = 0
+  do i = 1, 5
+     read(u, *) trow
+     call psik_table_eval(tab, trow(1), st)
+     tb(i) = trow(1)
+     ndiff = ndiff + count([st%theta, st%k, st%capacity, st%dk_dh] /= trow(2:5))
+     tref(i, :) = trow(2:5)
+  end do
+  call psik_table_eval_batch(tab, 5_c_size_t, tb, capacity=tcap)
+  ndiff = ndiff + count(tcap /= tref(:, 3))
+  call check(ndiff == 0, "table values from Fortran = C's (single and batch)")
+  deallocate(mem)
   ncmp = 0; ndiff = 0
   do
      read(u, *, iostat=ios) kind, np
