@@ -77,5 +77,12 @@ CEOF
 else
     bad "drainage example does not build:"; head -20 "$O/drainage.log"
 fi
+# coverage (information): exported C functions without a Fortran interface
+unbound=""
+for f in $(grep -v '^#' tests/abi/exported_symbols.txt | sed 's/@.*//'); do
+    grep -q "name=\"$f\"" bindings/fortran/psik.f90 || grep -qi "function $f(" bindings/fortran/psik.f90 \
+        || unbound="$unbound $f"
+done
+echo "# C functions without a Fortran interface:${unbound:- none}"
 echo "fortran: $pass passed, $fail failed"
 [ "$fail" -eq 0 ]

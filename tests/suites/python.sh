@@ -55,5 +55,11 @@ print(psik.__file__.startswith("'"$tmp/site"'"), m.theta(-100.0) == psik._c.psik
 else
     fail=$((fail + 1)); echo "FAIL pip install bindings/python offline:"; tail -15 "$tmp/pip.log" | sed 's/^/     /'
 fi
+# coverage (information): exported C functions not declared in bindings/python/psik/_lib.py
+unbound=""
+for f in $(grep -v '^#' tests/abi/exported_symbols.txt | sed 's/@.*//'); do
+    grep -q "\"$f\"" bindings/python/psik/_lib.py || unbound="$unbound $f"
+done
+echo "# C functions not declared in bindings/python/psik/_lib.py:${unbound:- none}"
 echo "python: $pass passed, $fail failed"
 [ "$fail" -eq 0 ]
