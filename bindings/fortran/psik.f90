@@ -57,6 +57,44 @@ module psik
      real(c_double) :: theta_rel, k_rel
   end type psik_table_error
 
+  ! psik_fit_result flag bits and psik_fit_stop values
+  integer(c_int), parameter :: PSIK_FIT_FREE = 0, PSIK_FIT_FIXED = 1, PSIK_FIT_AUTOFIXED = 2, &
+       PSIK_FIT_AT_LOWER = 4, PSIK_FIT_AT_UPPER = 8, PSIK_FIT_UNDEFINED = 16
+  integer(c_int), parameter :: PSIK_FIT_STOP_STEP = 1, PSIK_FIT_STOP_REDUCTION = 2, &
+       PSIK_FIT_STOP_GRADIENT = 3, PSIK_FIT_STOP_EXACT = 4, PSIK_FIT_STOP_MAXITER = 5, &
+       PSIK_FIT_STOP_STALLED = 6
+
+  !> struct psik_fit_data (pointers as c_ptr: use psik_fit_simple, or c_loc
+  !> of target arrays; c_null_ptr for absent weights).
+  type, bind(c) :: psik_fit_data
+     integer(c_size_t) :: n_theta = 0
+     type(c_ptr) :: h_theta = c_null_ptr, theta = c_null_ptr, w_theta = c_null_ptr
+     integer(c_size_t) :: n_k = 0
+     type(c_ptr) :: h_k = c_null_ptr, k = c_null_ptr, w_k = c_null_ptr
+     real(c_double) :: k_weight = 0
+  end type psik_fit_data
+
+  !> struct psik_fit_options: fill with psik_fit_defaults first.
+  type, bind(c) :: psik_fit_options
+     integer(c_int) :: fixed(PSIK_MAX_PARAMS)
+     real(c_double) :: value(PSIK_MAX_PARAMS), lo(PSIK_MAX_PARAMS), hi(PSIK_MAX_PARAMS)
+     integer(c_int) :: starts, samples, max_iter
+     real(c_double) :: tol, confidence
+  end type psik_fit_options
+
+  !> struct psik_fit_result. corr is C's corr[i][j] at corr(j+1, i+1).
+  type, bind(c) :: psik_fit_result
+     integer(c_int) :: kind, npar
+     real(c_double) :: par(PSIK_MAX_PARAMS), std_err(PSIK_MAX_PARAMS)
+     real(c_double) :: ci_lo(PSIK_MAX_PARAMS), ci_hi(PSIK_MAX_PARAMS)
+     integer(c_int) :: flag(PSIK_MAX_PARAMS)
+     real(c_double) :: corr(PSIK_MAX_PARAMS, PSIK_MAX_PARAMS)
+     real(c_double) :: sse, sse_theta, sse_logk, rmse, r2, r2_logk, aic, aicc, bic
+     real(c_double) :: t_value, confidence
+     integer(c_int) :: n_obs, n_theta, n_k, n_free, dof, iterations, starts, evaluations, stop
+     character(kind=c_char) :: note(512)
+  end type psik_fit_result
+
   !> Default knot density of a table (knots per decade of suction).
   real(c_double), parameter :: PSIK_TABLE_DENSITY = 200d0
 
@@ -277,9 +315,116 @@ module psik
        real(c_double), intent(in) :: h(*)
        real(c_double), intent(out), optional :: theta(*), k(*), capacity(*), dk_dh(*)
      end subroutine
+
+     !> Fill o with the fitting defaults (C psik_fit_defaults).
+     subroutine psik_fit_defaults(o) bind(c, name="psik_fit_defaults")
+       import :: psik_fit_options
+       type(psik_fit_options), intent(out) :: o
+     end subroutine
+     function psik_fit_c(kind, data, opt, res, msg, cap) bind(c, name="psik_fit") result(st)
+       import :: psik_fit_data, psik_fit_options, psik_fit_result, c_int, c_char, c_size_t
+       integer(c_int), value :: kind
+       type(psik_fit_data), intent(in) :: data
+       type(psik_fit_options), intent(in), optional :: opt
+       type(psik_fit_result), intent(out) :: res
+       character(kind=c_char), intent(out) :: msg(*)
+       integer(c_size_t), value :: cap
+       integer(c_int) :: st
+     end function
+     !> Jacobian of the weighted residuals at par (C psik_fit_jacobian; jac
+     !> holds C's row-major (n_theta + n_k) x npar matrix).
+     function psik_fit_jacobian(kind, data, par, numeric, jac) &
+          bind(c, name="psik_fit_jacobian") result(st)
+       import :: psik_fit_data, c_int, c_double
+       integer(c_int), value :: kind
+       type(psik_fit_data), intent(in) :: data
+       real(c_double), intent(in) :: par(*)
+       integer(c_int), value :: numeric
+       real(c_double), intent(out) :: jac(*)
+       integer(c_int) :: st
+     end function
+     function psik_fit_stop_name_c(stop) bind(c, name="psik_fit_stop_name") result(p)
+       import :: c_int, c_ptr
+       integer(c_int), value :: stop
+       type(c_ptr) :: p
+     end function
+     !> Quantile of Student's t distribution (C psik_t_quantile).
+     function psik_t_quantile(p, dof) bind(c, name="psik_t_quantile") result(t)
+       import :: c_double
+       real(c_double), value :: p, dof
+       real(c_double) :: t
+     end function
+     !> Rank fits by AICc (C psik_fit_rank); order receives 0-based indices.
+     function psik_fit_rank(fits, count, order, weight) bind(c, name="psik_fit_rank") result(st)
+       import :: psik_fit_result, c_size_t, c_double, c_int
+       type(psik_fit_result), intent(in) :: fits(*)
+       integer(c_size_t), value :: count
+       integer(c_size_t), intent(out) :: order(*)
+       real(c_double), intent(out), optional :: weight(*)
+       integer(c_int) :: st
+     end function
   end interface
 
 contains
+
+  !> Fit kind to data (C psik_fit); msg (optional) receives the library's
+  !> sentence on failure.
+  function psik_fit(kind, data, opt, res, msg) result(st)
+    integer(c_int), intent(in) :: kind
+    type(psik_fit_data), intent(in) :: data
+    type(psik_fit_options), intent(in), optional :: opt
+    type(psik_fit_result), intent(out) :: res
+    character(len=*), intent(out), optional :: msg
+    integer(c_int) :: st
+    character(kind=c_char) :: buf(512)
+    integer :: i
+    buf = c_null_char
+    st = psik_fit_c(kind, data, opt, res, buf, int(size(buf), c_size_t))
+    if (present(msg)) then
+       msg = ""
+       do i = 1, min(len(msg), size(buf))
+          if (buf(i) == c_null_char) exit
+          msg(i:i) = buf(i)
+       end do
+    end if
+  end function
+
+  !> Retention-only fit from Fortran arrays (they must be TARGETs or
+  !> otherwise contiguous; w optional): builds the psik_fit_data itself.
+  function psik_fit_simple(kind, h, theta, res, msg, w, opt) result(st)
+    integer(c_int), intent(in) :: kind
+    real(c_double), intent(in), target, contiguous :: h(:), theta(:)
+    type(psik_fit_result), intent(out) :: res
+    character(len=*), intent(out), optional :: msg
+    real(c_double), intent(in), target, contiguous, optional :: w(:)
+    type(psik_fit_options), intent(in), optional :: opt
+    integer(c_int) :: st
+    type(psik_fit_data) :: d
+    if (size(h) /= size(theta)) then
+       st = PSIK_EINVAL
+       if (present(msg)) msg = "h and theta differ in length"
+       return
+    end if
+    d%n_theta = size(h, kind=c_size_t)
+    d%h_theta = c_loc(h)
+    d%theta = c_loc(theta)
+    if (present(w)) d%w_theta = c_loc(w)
+    st = psik_fit(kind, d, opt, res, msg)
+  end function
+
+  !> Why a fit stopped, as text.
+  function psik_fit_stop_name(stop) result(text)
+    integer(c_int), intent(in) :: stop
+    character(len=:), allocatable :: text
+    text = c_to_f(psik_fit_stop_name_c(stop))
+  end function
+
+  !> The note of a fit result as a Fortran string.
+  function psik_fit_note(res) result(text)
+    type(psik_fit_result), intent(in), target :: res
+    character(len=:), allocatable :: text
+    text = c_to_f(c_loc(res%note))
+  end function
 
   !> The van Genuchten-Mualem model of a USDA texture class (C psik_preset).
   function psik_preset(m, texture) result(st)

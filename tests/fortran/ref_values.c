@@ -40,6 +40,29 @@ int main(void)
         for (i = 0; i < 5; i++)
             printf("%.17e %.17e %.17e %.17e %.17e\n", th[i], o[0][i], o[1][i], o[2][i], o[3][i]);
     }
+    printf("%u %u %u %u\n", (unsigned)sizeof(psik_fit_data), (unsigned)sizeof(psik_fit_options),
+           (unsigned)sizeof(psik_fit_result), (unsigned)sizeof(psik_table_error));
+    {   /* a retention fit of loam data made by the library (12 heads) */
+        static const double fh[12] = { -1, -3, -10, -20, -33, -60, -100, -200, -330, -1000,
+                                       -3000, -15000 };
+        const double loam[6] = { 0.078, 0.43, 0.036, 1.56, 24.96, 0.5 };
+        double ft[12];
+        psik_model m;
+        psik_fit_data d = { 0, 0, 0, 0, 0, 0, 0, 0, 0.0 };
+        static psik_fit_result r;
+        if (psik_init(&m, PSIK_VGM, loam) != PSIK_OK)
+            return 1;
+        for (i = 0; i < 12; i++)
+            ft[i] = psik_theta(&m, fh[i]);
+        d.n_theta = 12;
+        d.h_theta = fh;
+        d.theta = ft;
+        if (psik_fit(PSIK_VGM, &d, NULL, &r, msg, sizeof msg) != PSIK_OK)
+            return 1;
+        printf("%.17e %d %d\n", r.sse, r.n_free, r.flag[4]);
+        for (j = 0; j < 6; j++)
+            printf("%.17e %.17e\n", r.par[j], r.std_err[j]);
+    }
     for (kind = 1; kind < 64; kind++) {
         double par[PSIK_MAX_PARAMS];
         psik_model m;

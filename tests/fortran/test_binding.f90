@@ -25,6 +25,14 @@ program test_binding
   type(c_ptr) :: tab
   type(psik_table_error) :: terr, terr_c
   real(c_double) :: trow(5), tb(5), tcap(5), tref(5, 4)
+  type(psik_fit_data) :: fdata
+  type(psik_fit_options) :: fopt
+  type(psik_fit_result) :: fres
+  integer(c_size_t) :: sz_c(4)
+  real(c_double) :: fsse, fpar(6), ferr(6), ft(12)
+  real(c_double), target :: fh(12) = [-1d0, -3d0, -10d0, -20d0, -33d0, -60d0, -100d0, -200d0, &
+       -330d0, -1000d0, -3000d0, -15000d0]
+  integer :: fnfree, fflag
 
   ! --- layout (ABI 1)
   base = transfer(c_loc(m), base)
@@ -109,6 +117,44 @@ program test_binding
   ndiff = ndiff + count(tcap /= tref(:, 3))
   call check(ndiff == 0, "table values from Fortran = C's (single and batch)")
   deallocate(mem)
+
+  ! --- fitting against C
+  read(u, *) sz_c
+  call check(c_sizeof(fdata) == sz_c(1) .and. c_sizeof(fopt) == sz_c(2) .and. &
+       c_sizeof(fres) == sz_c(3) .and. c_sizeof(terr) == sz_c(4), &
+       "c_sizeof of psik_fit_data, psik_fit_options, psik_fit_result, psik_table_error = C's")
+  read(u, *) fsse, fnfree, fflag
+  do i = 1, 6
+     read(u, *) fpar(i), ferr(i)
+  end do
+  par(1:6) = [0.078d0, 0.43d0, 0.036d0, 1.56d0, 24.96d0, 0.5d0]
+  ios = psik_init(m2, PSIK_VGM, par)
+  do i = 1, 12
+     ft(i) = psik_theta(m2, fh(i))
+  end do
+  ios = psik_fit_simple(PSIK_VGM, fh, ft, fres, fmsg)
+  call check(ios == PSIK_OK .and. fres%sse == fsse .and. all(fres%par(1:6) == fpar) .and. &
+       all(fres%std_err(1:6) == ferr) .and. fres%n_free == fnfree .and. fres%flag(5) == fflag, &
+       "psik_fit_simple = C psik_fit (estimates, errors, SSE bit for bit)")
+  print '(a,es10.3,a,es10.3)', "# noise-free loam fit from Fortran: largest parameter error ", &
+       maxval(abs(fres%par(1:4) - par(1:4)) / par(1:4)), ", sse ", fres%sse
+  call check(maxval(abs(fres%par(1:4) - par(1:4)) / par(1:4)) < 1d-7 .and. &
+       iand(fres%flag(5), PSIK_FIT_AUTOFIXED) /= 0 .and. index(psik_fit_note(fres), "ks") > 0 .and. &
+       psik_fit_stop_name(fres%stop) /= "", &
+       "recovers theta_r theta_s alpha n; ks held without K data, and the note says so")
+  call psik_fit_defaults(fopt)
+  fopt%fixed(1) = 1
+  fopt%value(1) = 0.05d0
+  fopt%starts = 2
+  ios = psik_fit_simple(PSIK_VGM, fh, ft, fres, fmsg, opt=fopt)
+  call check(ios == PSIK_OK .and. fres%par(1) == 0.05d0 .and. iand(fres%flag(1), PSIK_FIT_FIXED) /= 0, &
+       "options from Fortran: theta_r held at 0.05")
+  ft(3) = -1
+  ios = psik_fit_simple(PSIK_VGM, fh, ft, fres, fmsg)
+  call check(ios == PSIK_EDATA .and. index(fmsg, "retention point 3") > 0, &
+       "bad data refused with the point named: " // trim(fmsg))
+  call check(abs(psik_t_quantile(0.975d0, 10d0) - 2.2281388519862747d0) < 1d-14, &
+       "psik_t_quantile(0.975, 10) = 2.2281388519862747 (mpmath, 40 digits)")
   ncmp = 0; ndiff = 0
   do
      read(u, *, iostat=ios) kind, np
