@@ -36,13 +36,14 @@
 #include <float.h>
 #include <math.h>
 
-/* aux layout: 4 slots per mode, then l, 1 / sum w_i alpha_i, mode count */
+/* aux layout: 4 slots per mode (alpha, n, c, w), then l, mode count, the
+ * remainder of the last weight */
 #define A_ALPHA(i) (4 * (i) + 0)
 #define A_N(i)     (4 * (i) + 1)
-#define A_M(i)     (4 * (i) + 2)
+#define A_C(i)     (4 * (i) + 2)  /* w_i alpha_i / sum_j w_j alpha_j */
 #define A_W(i)     (4 * (i) + 3)
 #define A_L        12
-#define A_SUM      13  /* sum w_i alpha_i */
+#define A_FREE     13
 #define A_NMODES   14
 #define A_WLO      15  /* the last weight, 1 - sum of the others, is
                           w + A_WLO exactly (two parts) */
@@ -63,7 +64,8 @@ typedef struct dur_sum {
 /* One mode at suction s (finite, > 0), accumulated into *acc. */
 static void mode_add(const double *a, int i, double s, dur_sum *acc)
 {
-    const double alpha = a[A_ALPHA(i)], n = a[A_N(i)], mm = a[A_M(i)], w = a[A_W(i)];
+    const double alpha = a[A_ALPHA(i)], n = a[A_N(i)], w = a[A_W(i)], c = a[A_C(i)];
+    const double mm = (n - 1.0) / n;
     const double k = n - 1.0;     /* exact for n >= 1 */
     double p = alpha * s, S, cS, g, dls, dg, ym, ky, kr_;
     if (p <= 1.0) {
@@ -101,15 +103,15 @@ static void mode_add(const double *a, int i, double s, dur_sum *acc)
     {
         /* the last weight carries its rounding remainder */
         double wl = i == (int)a[A_NMODES] - 1 ? a[A_WLO] : 0.0;
-        double wS = w * S + wl * S, wa = w * alpha + wl * alpha;
+        double wS = w * S + wl * S;
         acc->se += wS;
         acc->dse += wS * dls;
-        acc->g += wa * g;
-        acc->dg += wa * dg;
+        acc->g += c * g;
+        acc->dg += c * dg;
         acc->cse += w * cS + wl * cS;
-        acc->cg += wa * ym;
+        acc->cg += c * ym;
         acc->sdse += wS * ky;
-        acc->sdg += wa * kr_;
+        acc->sdg += c * kr_;
     }
 }
 
@@ -149,7 +151,7 @@ static void dur_point(const psik_model *m, double s, psik_point *out)
         return;
     }
     {
-        double cgr = q.cg / a[A_SUM];     /* 1 - G */
+        double cgr = q.cg;     /* 1 - G */
         if (q.cse < 0.5 && cgr < 0.5) {
             /* near saturation: from the complements, which keep the digits
              * that Se and G ~ 1 have lost */
@@ -157,11 +159,11 @@ static void dur_point(const psik_model *m, double s, psik_point *out)
         } else if (a[A_L] >= 0.0 || q.se > 1e-150) {
             /* (Se^L G) G: for L < 0 the first product lifts G before the
              * second, so G^2 never underflows on its own */
-            double G = q.g / a[A_SUM];
+            double G = q.g;
             kr = (pow(q.se, a[A_L]) * G) * G;
         } else {
             /* Se^L would overflow: the square root of Kr stays in range */
-            r = pow(q.se, 0.5 * a[A_L]) * (q.g / a[A_SUM]);
+            r = pow(q.se, 0.5 * a[A_L]) * q.g;
             kr = r * r;
         }
     }
@@ -196,7 +198,7 @@ static double dur_kr(const psik_model *m, double s)
  * logarithms so that no power overflows (a bracket end, not the answer). */
 static double mode_log_suction(const double *a, int i, double se)
 {
-    const double n = a[A_N(i)], mm = a[A_M(i)];
+    const double n = a[A_N(i)], mm = (n - 1.0) / n;
     double t = -log(se) / mm, lx;        /* ln(1 + x) */
     lx = t > 700.0 ? t + log(-expm1(-t)) : log(expm1(t));   /* ln x */
     return lx / n - log(a[A_ALPHA(i)]);
@@ -365,19 +367,28 @@ static void set_mode(double *a, int i, double alpha, double n, double w)
 {
     a[A_ALPHA(i)] = alpha;
     a[A_N(i)] = n;
-    a[A_M(i)] = (n - 1.0) / n;
     a[A_W(i)] = w;
 }
 
 static void finish_prepare(psik_model *m, int nm, double L)
 {
-    double *a = m->aux, sum = 0.0;
+    /* the normalized conductivity weights c_i = w_i alpha_i / sum, each
+     * rounded once (long double sum at init: no error in the sum itself
+     * reaches G beyond the rounding of c_i) */
+    double *a = m->aux;
+    long double sum = 0.0L;
     int i;
     for (i = 0; i < nm; i++)
-        sum += a[A_W(i)] * a[A_ALPHA(i)];
-    sum += a[A_WLO] * a[A_ALPHA(nm - 1)];
+        sum += (long double)a[A_W(i)] * a[A_ALPHA(i)];
+    sum += (long double)a[A_WLO] * a[A_ALPHA(nm - 1)];
+    for (i = 0; i < nm; i++) {
+        long double w = a[A_W(i)];
+        if (i == nm - 1)
+            w += a[A_WLO];
+        a[A_C(i)] = (double)(w * a[A_ALPHA(i)] / sum);
+    }
+    a[A_FREE] = 0.0;
     a[A_L] = L;
-    a[A_SUM] = sum;
     a[A_NMODES] = (double)nm;
     m->h_sat = 0.0;
 }
