@@ -50,15 +50,23 @@
 
 #define MAX_ITER 200
 
+/* The sums over the modes and what is combined from them are carried in
+ * long double (where that type is wider than double, e.g. the x87 80-bit
+ * format): the per-mode terms are double, but their weighting, summing,
+ * the division by Se and G and the powers of Se add no rounding of their
+ * own before the one at the end. Where long double is double this is the
+ * plain double computation. */
+typedef long double acc_t;
+
 typedef struct dur_sum {
-    double se;    /* sum w S */
-    double dse;   /* sum w dS/dh */
-    double g;     /* sum w alpha g */
-    double dg;    /* sum w alpha dg/dh */
-    double cse;   /* sum w (1 - S), kept exactly where S is near 1 */
-    double cg;    /* sum w alpha (1 - g) = sum w alpha y^m */
-    double sdse;  /* s dSe/dh = sum w S k y (no underflow of 1/s factors) */
-    double sdg;   /* s (sum w alpha dg/dh) = sum w alpha k y^m r */
+    acc_t se;     /* sum w S */
+    acc_t dse;    /* sum w dS/dh */
+    acc_t g;      /* sum c g = G */
+    acc_t dg;     /* sum c dg/dh */
+    acc_t cse;    /* sum w (1 - S), kept exactly where S is near 1 */
+    acc_t cg;     /* sum c (1 - g) = sum c y^m = 1 - G */
+    acc_t sdse;   /* s dSe/dh = sum w S k y (no underflow of 1/s factors) */
+    acc_t sdg;    /* s dG/dh = sum c k y^m r */
 } dur_sum;
 
 /* One mode at suction s (finite, > 0), accumulated into *acc. */
@@ -102,24 +110,24 @@ static void mode_add(const double *a, int i, double s, dur_sum *acc)
     }
     {
         /* the last weight carries its rounding remainder */
-        double wl = i == (int)a[A_NMODES] - 1 ? a[A_WLO] : 0.0;
-        double wS = w * S + wl * S;
+        acc_t wt = (acc_t)w + (i == (int)a[A_NMODES] - 1 ? a[A_WLO] : 0.0);
+        acc_t wS = wt * S;
         acc->se += wS;
         acc->dse += wS * dls;
-        acc->g += c * g;
-        acc->dg += c * dg;
-        acc->cse += w * cS + wl * cS;
-        acc->cg += c * ym;
+        acc->g += (acc_t)c * g;
+        acc->dg += (acc_t)c * dg;
+        acc->cse += wt * cS;
+        acc->cg += (acc_t)c * ym;
         acc->sdse += wS * ky;
-        acc->sdg += c * kr_;
+        acc->sdg += (acc_t)c * kr_;
     }
 }
 
 /* Se from the sums: 1 - sum w (1 - S) near saturation (the weights add up
  * to 1 exactly, the last one in two parts), the plain sum elsewhere. */
-static double se_of(const dur_sum *q)
+static acc_t se_of(const dur_sum *q)
 {
-    return q->cse < 0.5 ? 1.0 - q->cse : q->se;
+    return q->cse < 0.5L ? 1.0L - q->cse : q->se;
 }
 
 static void dur_sums(const double *a, double s, dur_sum *acc)
@@ -134,46 +142,43 @@ static void dur_sums(const double *a, double s, dur_sum *acc)
 static void dur_point(const psik_model *m, double s, psik_point *out)
 {
     const double *a = m->aux;
+    const acc_t L = a[A_L];
     dur_sum q;
-    double r, kr;
+    acc_t kr;
     if (isinf(s)) {
         out->se = out->kr = out->dse = out->dkr = 0.0;
         return;
     }
     dur_sums(a, s, &q);
     q.se = se_of(&q);
-    out->se = q.se;
+    out->se = (double)q.se;
     /* the scaled sums for s >= 1, where w S dS/dh may underflow term by
      * term; the direct ones for s < 1, where 1/s may overflow */
-    out->dse = s >= 1.0 ? q.sdse / s : q.dse;
-    if (!(q.se > 0.0) || !(q.g > 0.0)) {
+    out->dse = (double)(s >= 1.0 ? q.sdse / s : q.dse);
+    if (!(q.se > 0.0L) || !(q.g > 0.0L)) {
         out->kr = out->dkr = 0.0;
         return;
     }
-    {
-        double cgr = q.cg;     /* 1 - G */
-        if (q.cse < 0.5 && cgr < 0.5) {
-            /* near saturation: from the complements, which keep the digits
-             * that Se and G ~ 1 have lost */
-            kr = exp(a[A_L] * log1p(-q.cse) + 2.0 * log1p(-cgr));
-        } else if (a[A_L] >= 0.0 || q.se > 1e-150) {
-            /* (Se^L G) G: for L < 0 the first product lifts G before the
-             * second, so G^2 never underflows on its own */
-            double G = q.g;
-            kr = (pow(q.se, a[A_L]) * G) * G;
-        } else {
-            /* Se^L would overflow: the square root of Kr stays in range */
-            r = pow(q.se, 0.5 * a[A_L]) * q.g;
-            kr = r * r;
-        }
+    if (q.cse < 0.5L && q.cg < 0.5L) {
+        /* near saturation: from the complements, which keep the digits
+         * that Se and G ~ 1 have lost */
+        kr = expl(L * log1pl(-q.cse) + 2.0L * log1pl(-q.cg));
+    } else if (L >= 0.0L || q.se > 1e-150L) {
+        /* (Se^L G) G: for L < 0 the first product lifts G before the
+         * second, so G^2 does not underflow on its own */
+        kr = (powl(q.se, L) * q.g) * q.g;
+    } else {
+        /* Se^L could overflow: the square root of Kr stays in range */
+        acc_t r = powl(q.se, 0.5L * L) * q.g;
+        kr = r * r;
     }
-    out->kr = kr;
-    if (!(kr > 0.0))
+    out->kr = (double)kr;
+    if (!(out->kr > 0.0))
         out->dkr = 0.0;
     else if (s >= 1.0)
-        out->dkr = kr * ((a[A_L] * (q.sdse / q.se) + 2.0 * (q.sdg / q.g)) / s);
+        out->dkr = (double)(kr * ((L * (q.sdse / q.se) + 2.0L * (q.sdg / q.g)) / s));
     else
-        out->dkr = kr * (a[A_L] * (q.dse / q.se) + 2.0 * (q.dg / q.g));
+        out->dkr = (double)(kr * (L * (q.dse / q.se) + 2.0L * (q.dg / q.g)));
 }
 
 /* Se alone: the same sums as dur_point, so psik_se and psik_eval agree
@@ -184,7 +189,7 @@ static double dur_se(const psik_model *m, double s)
     if (isinf(s))
         return 0.0;
     dur_sums(m->aux, s, &q);
-    return se_of(&q);
+    return (double)se_of(&q);
 }
 
 static double dur_kr(const psik_model *m, double s)
@@ -219,12 +224,12 @@ static double dur_residual(const double *a, double s, double target, double *dF)
     dur_sum q;
     dur_sums(a, s, &q);
     q.se = se_of(&q);
-    if (!(q.se > 0.0)) {
+    if (!(q.se > 0.0L)) {
         *dF = 0.0;
         return -INFINITY;
     }
-    *dF = -(q.sdse / q.se);
-    return log1p((q.se - target) / target);
+    *dF = (double)(-(q.sdse / q.se));
+    return (double)log1pl((q.se - target) / target);
 }
 
 static double dur_suction(const psik_model *m, double se)
