@@ -57,7 +57,7 @@ $(B)/obj/%.o: lib/%.c include/psik.h lib/psik_internal.h
 # scalar, SSE2, AVX2 and AVX-512 paths give the same bits (no -ffast-math).
 FAST_OBJ := $(filter $(B)/obj/batch_%.o $(B)/obj/table.o,$(LIB_OBJ))
 $(FAST_OBJ): CFLAGS_LIB += -O3 -fno-math-errno -ffp-contract=off
-$(FAST_OBJ): lib/fastmath.h lib/fast_vg.h
+$(FAST_OBJ): lib/fastmath.h lib/fastmath_tables.h lib/fast_vg.h
 
 $(LIB_A): $(LIB_OBJ)
 	@mkdir -p $(dir $@)

@@ -66,7 +66,7 @@ PSIK_FM int vg_core(const psik_vgc *c, double s, int half, int model,
 {
     const double n = c->n, m = c->m, k = c->k, ka = c->k * c->alpha;
     double p = c->alpha * s;
-    double lph, lpl, th, tl, a, b, kh, kl, mb, e1h, e1l, e2h, e2l, t1, t2;
+    double lph, lpl, th, tl, a, b, bl, kh, kl, mb, mbl, e1h, e1l, e2h, e2l, t1, t2;
     double S, ym, em1, g, inv, y, r, invp, dls, dg, se, seL, G, dG, kr, dkr;
     int wet, ok;
     lph = psik__fm_log_dd(p, &lpl);
@@ -75,15 +75,15 @@ PSIK_FM int vg_core(const psik_vgc *c, double s, int half, int model,
     t1 = -th;
     t2 = -tl;
     a = psik__fm_exp_dd(psik__fm_sel(wet, th, t1), psik__fm_sel(wet, tl, t2));
-    b = psik__fm_log1p_fin(a);
+    b = psik__fm_log1p_dd(a, &bl);
     psik__fm_mul_dd(k, lph, lpl, &kh, &kl);
-    mb = m * b;
+    psik__fm_mul_dd(m, b, bl, &mb, &mbl);
     t1 = -kh;
     psik__fm_two_sum(psik__fm_sel(wet, 0.0, t1), -mb, &e1h, &t1);
     t2 = -kl;
-    e1l = t1 + psik__fm_sel(wet, 0.0, t2);
+    e1l = (t1 - mbl) + psik__fm_sel(wet, 0.0, t2);
     psik__fm_two_sum(psik__fm_sel(wet, kh, 0.0), -mb, &e2h, &t2);
-    e2l = t2 + psik__fm_sel(wet, kl, 0.0);
+    e2l = (t2 - mbl) + psik__fm_sel(wet, kl, 0.0);
     S = psik__fm_exp_dd(e1h, e1l);
     psik__fm_exp_expm1_dd(e2h, e2l, &ym, &em1);
     g = -em1;
@@ -144,7 +144,7 @@ PSIK_HIDDEN int psik__vg_se_fast(const psik_vgc *c, double s, double *se)
 {
     const double n = c->n, m = c->m, k = c->k;
     double p = c->alpha * s;
-    double lph, lpl, th, tl, a, b, kh, kl, mb, e1h, e1l, t1, t2, S;
+    double lph, lpl, th, tl, a, b, bl, kh, kl, mb, mbl, e1h, e1l, t1, t2, S;
     int wet;
     if (c->model != PSIK_VGC_MUALEM)
         return 0;
@@ -156,13 +156,13 @@ PSIK_HIDDEN int psik__vg_se_fast(const psik_vgc *c, double s, double *se)
     t1 = -th;
     t2 = -tl;
     a = psik__fm_exp_dd(psik__fm_sel(wet, th, t1), psik__fm_sel(wet, tl, t2));
-    b = psik__fm_log1p_fin(a);
+    b = psik__fm_log1p_dd(a, &bl);
     psik__fm_mul_dd(k, lph, lpl, &kh, &kl);
-    mb = m * b;
+    psik__fm_mul_dd(m, b, bl, &mb, &mbl);
     t1 = -kh;
     psik__fm_two_sum(psik__fm_sel(wet, 0.0, t1), -mb, &e1h, &t1);
     t2 = -kl;
-    e1l = t1 + psik__fm_sel(wet, 0.0, t2);
+    e1l = (t1 - mbl) + psik__fm_sel(wet, 0.0, t2);
     S = psik__fm_exp_dd(e1h, e1l);
     *se = S;
     return 1;

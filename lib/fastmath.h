@@ -1,15 +1,17 @@
 /* fastmath.h - branch-free exp, expm1, log, log1p for the fused and batch
  * kernels (not installed). Every function is static inline so that a loop
- * calling it can be vectorised by the compiler: no table lookups, no
- * branches (only selects, which become blends), no integer/float
- * conversions the base x86-64 instruction set lacks (integers travel through
- * the bits of doubles), no libm calls except sqrt.
+ * calling it can be vectorised by the compiler: no branches (only selects,
+ * which become blends), no integer/float conversions the base x86-64
+ * instruction set lacks (integers travel through the bits of doubles), no
+ * libm calls except sqrt; table lookups only into two small constant
+ * tables (fastmath_tables.h, generated with mpmath), which become gathers.
  *
  * Error bounds (measured by tests/unit/test_fastmath.c against glibc's long
  * double functions, 64-bit significand, over millions of arguments):
- * psik__fm_exp, psik__fm_expm1 <= 2 ulp, psik__fm_log, psik__fm_log1p <= 1 ulp;
+ * psik__fm_exp < 1 ulp, psik__fm_expm1 < 1 ulp, psik__fm_log and
+ * psik__fm_log1p < 1 ulp;
  * the test prints the largest error it saw. The double-double forms
- * (psik__fm_log_dd, psik__fm_exp_dd) carry about 58 bits, which is what
+ * (psik__fm_log_dd, psik__fm_exp_dd) carry about 60 bits, which is what
  * pow-like products c * log(p) need: their error in Se must not grow with
  * |log p|.
  *
@@ -27,6 +29,8 @@
 #include <math.h>
 #include <stdint.h>
 #include <string.h>
+
+#include "fastmath_tables.h"
 
 #if defined(__clang__)
 #pragma STDC FP_CONTRACT OFF
@@ -91,58 +95,56 @@ PSIK_FM void psik__fm_mul_dd(double c, double xh, double xl, double *ph, double 
 
 #define PSIK_FM_LN2HI 6.93147180369123816490e-01   /* 0x3fe62e42fee00000: 32 bits */
 #define PSIK_FM_LN2LO 1.90821492927058770002e-10
-#define PSIK_FM_INVLN2 1.44269504088896338700e+00
 #define PSIK_FM_SHIFT 6755399441055744.0            /* 0x1.8p52 */
 
 /* The shared core of exp and expm1 at x + lo (|lo| <= 2^-40 |x| or tiny).
- * x is first clamped to [-746, 710] (NaN stays NaN), k = round(x / ln 2)
- * through the 1.5 * 2^52 shift, r = x - k ln 2 + lo in Cody-Waite form
- * (|r| <= 0.347), q = e^r - 1 by its Taylor series to r^13 (truncation
- * below 2^-57 relative), and 2^k as the product of two powers of two
- * s1 s2 with normal exponents, so that the final multiply by s2 is the
- * only rounding also when the result is subnormal. */
-PSIK_FM void psik__fm_exp_core(double x, double lo, double *rh, double *ql, double *s1,
-                               double *s2, double *kd)
+ * x is first clamped to [-746, 710] (NaN stays NaN); k = round(128 x / ln 2)
+ * through the 1.5 * 2^52 shift, k = 128 e + j; r = x - k ln2/128 + lo in
+ * Cody-Waite form (|r| <= 0.0028, carried as r + rl); e^r - 1 = r + ql by
+ * the Taylor series to r^6 (truncation below 2^-70); 2^(j/128) from the
+ * table in two parts; 2^e as the product of two powers of two s1 s2 with
+ * normal exponents, so that the final multiply by s2 is the only rounding
+ * also when the result is subnormal. Outputs: m = 2^(j/128) e^r - 1 split
+ * as th (2^(j/128), hi part) and tl (the rest), and s1, s2. */
+PSIK_FM void psik__fm_exp_core(double x, double lo, double *th, double *tl, double *s1,
+                               double *s2)
 {
     double xc = psik__fm_sel(x > 710.0, 710.0, x);
-    double sh, k, r0, c, r, rl, p;
-    uint64_t ku, k1, k2;
+    double sh, k, r0, c, r, rl, p, ql, thi, tlo;
+    uint64_t ku, j, e2, k1, k2;
     xc = psik__fm_sel(xc < -746.0, -746.0, xc);
-    sh = xc * PSIK_FM_INVLN2 + PSIK_FM_SHIFT;
-    ku = psik__fm_bits(sh) - psik__fm_bits(PSIK_FM_SHIFT) + 2048u;   /* k + 2048 */
+    sh = xc * 184.66496523378731 + PSIK_FM_SHIFT;        /* 128 / ln 2 */
+    ku = psik__fm_bits(sh) - psik__fm_bits(PSIK_FM_SHIFT) + (2048u << 7);
     k = sh - PSIK_FM_SHIFT;
-    r0 = xc - k * PSIK_FM_LN2HI;               /* exact */
-    c = k * PSIK_FM_LN2LO;
+    r0 = xc - k * (PSIK_FM_LN2HI / 128.0);                 /* exact */
+    c = k * (PSIK_FM_LN2LO / 128.0);
     psik__fm_two_sum(r0, -c, &r, &rl);
     rl = rl + lo;
-    {   /* P(r) = sum 1/(j+2)! r^j, j = 0..11, Estrin's scheme (short chains) */
-        double r2 = r * r, r4 = r2 * r2, r8 = r4 * r4;
-        double p01 = 0.5 + r * (1.0 / 6.0);
-        double p23 = 1.0 / 24.0 + r * (1.0 / 120.0);
-        double p45 = 1.0 / 720.0 + r * (1.0 / 5040.0);
-        double p67 = 1.0 / 40320.0 + r * (1.0 / 362880.0);
-        double p89 = 1.0 / 3628800.0 + r * (1.0 / 39916800.0);
-        double pab = 1.0 / 479001600.0 + r * (1.0 / 6227020800.0);
-        double q0 = p01 + r2 * p23, q1 = p45 + r2 * p67, q2 = p89 + r2 * pab;
-        p = (q0 + r4 * q1) + r8 * q2;
+    {
+        double r2 = r * r;
+        p = (0.5 + r * (1.0 / 6.0)) + r2 * ((1.0 / 24.0 + r * (1.0 / 120.0)) + r2 * (1.0 / 720.0));
+        ql = r2 * p + rl * (1.0 + r);
     }
-    /* e^(r + rl) - 1 = r + [(r^2) p + rl (1 + r)] */
-    *rh = r;
-    *ql = (r * r) * p + rl * (1.0 + r);
-    k1 = ku >> 1;
-    k2 = ku - k1;
-    *s1 = psik__fm_double((k1 - 1u) << 52);   /* 2^(k1 - 1024) */
-    *s2 = psik__fm_double((k2 - 1u) << 52);   /* 2^(k2 - 1024) */
-    *kd = k;
+    j = ku & 127u;
+    e2 = ku >> 7;                                          /* e + 2048 */
+    thi = psik__fm_exp_tab[2 * j];
+    tlo = psik__fm_exp_tab[2 * j + 1];
+    /* 2^(j/128) e^(r + rl) = thi + [tlo + thi (r + ql) + tlo (r + ql)] */
+    *th = thi;
+    *tl = tlo + (thi + tlo) * (r + ql);
+    k1 = e2 >> 1;
+    k2 = e2 - k1;
+    *s1 = psik__fm_double((k1 - 1u) << 52);                /* 2^(k1 - 1024) */
+    *s2 = psik__fm_double((k2 - 1u) << 52);                /* 2^(k2 - 1024) */
 }
 
 /* exp(x + lo): error < 1 ulp (normal results), < 1 ulp of the smallest
  * subnormal below; 0 below -745.2, +inf above 709.8, NaN for NaN. */
 PSIK_FM double psik__fm_exp_dd(double x, double lo)
 {
-    double r, ql, s1, s2, k;
-    psik__fm_exp_core(x, lo, &r, &ql, &s1, &s2, &k);
-    return ((1.0 + (r + ql)) * s1) * s2;
+    double th, tl, s1, s2;
+    psik__fm_exp_core(x, lo, &th, &tl, &s1, &s2);
+    return ((th + tl) * s1) * s2;
 }
 
 PSIK_FM double psik__fm_exp(double x)
@@ -151,18 +153,22 @@ PSIK_FM double psik__fm_exp(double x)
 }
 
 /* exp(x + lo) and expm1(x + lo) together (one reduction, one polynomial):
- * expm1 = ((2^k - 1) + 2^k r) + 2^k ql, where 2^k - 1 is exact for
- * |k| <= 53 and the first sum is exact where it cancels (k = 1, r < -1/4,
- * by Sterbenz), so the error stays below 1.5 ulp. */
+ * expm1 = (2^e th - 1) + 2^e tl with 2^e th - 1 carried exactly in two
+ * parts, so the only roundings are the last sum and tl's (< 1 ulp); above
+ * x = 40 expm1 = exp to rounding. */
 PSIK_FM void psik__fm_exp_expm1_dd(double x, double lo, double *e, double *em1)
 {
-    double r, ql, s1, s2, k, two_k, ex, em;
-    psik__fm_exp_core(x, lo, &r, &ql, &s1, &s2, &k);
-    ex = ((1.0 + (r + ql)) * s1) * s2;
+    double th, tl, s1, s2, two_k, ex, em;
+    psik__fm_exp_core(x, lo, &th, &tl, &s1, &s2);
+    ex = ((th + tl) * s1) * s2;
     two_k = s1 * s2;
-    em = ((two_k - 1.0) + two_k * r) + two_k * ql;
+    {   /* 2^e th - 1 exactly as sa + ea (2^e th is exact where it matters) */
+        double sa, ea;
+        psik__fm_two_sum(two_k * th, -1.0, &sa, &ea);
+        em = sa + (ea + two_k * tl);
+    }
     *e = ex;
-    *em1 = psik__fm_sel(k > 60.0, ex, em);      /* large k: exp overflows or swamps the 1 */
+    *em1 = psik__fm_sel(x > 40.0, ex, em);
 }
 
 /* expm1(x): error < 2 ulp; -1 below -37.5, +inf above 709.8, NaN for NaN. */
@@ -175,10 +181,12 @@ PSIK_FM double psik__fm_expm1(double x)
 
 /* log(x) as hi + lo for finite x > 0 (normal or subnormal), absolute error
  * below 2^-58 (and relative below 2^-58 when 0.707 < x < 1.414).
- * Method: x = 2^k z with z in [sqrt(2)/2, sqrt(2)) from the bits,
- * f = z - 1 (exact), s = f / (2 + f) carried as sh + sl,
- * log z = 2 atanh s = 2s + 2 s^3 (1/3 + s^2/5 + ... + s^18/21) with
- * |s| <= 0.1716 (truncation below 2^-61), and k ln 2 in two parts.
+ * Method: x = 2^k z with z in [sqrt(2)/2, sqrt(2)) from the bits; c = j/128
+ * the nearest multiple of 1/128 (z - c exact, Sterbenz); r = (z - c)/c as
+ * rh + rl (rh = (z - c) * fl(1/c) from the table, rl from the exact
+ * remainder: c has 8 bits); log z = log c + log1p(r) with log c in two
+ * parts from the table and log1p(r) = r - r^2/2 + r^3 (1/3 - r/4 + ... +
+ * r^4/7) for |r| <= 0.0055 (truncation below 2^-63); k ln 2 in two parts.
  * Zero, negative, infinite and NaN x give garbage: callers select. */
 PSIK_FM double psik__fm_log_dd(double x, double *lo)
 {
@@ -192,26 +200,28 @@ PSIK_FM double psik__fm_log_dd(double x, double *lo)
     double z = psik__fm_double(iz);
     double k = (psik__fm_double(0x4330000000000000ULL | kk) - 4503599627370496.0)
                - 2048.0 - koff;
-    double f = z - 1.0;
-    double dh = 2.0 + f, dl = (2.0 - dh) + f;
-    double sh = f / dh, ph, pl, sl, s2, P, T, H, e1, l, hi;
-    psik__fm_two_prod(sh, dh, &ph, &pl);
-    sl = (((f - ph) - pl) - sh * dl) / dh;
-    s2 = sh * sh;
-    {   /* P = sum s2^j / (2j + 3), j = 0..9, Estrin's scheme */
-        double z2 = s2 * s2, z4 = z2 * z2, z8 = z4 * z4;
-        double p01 = 1.0 / 3.0 + s2 * (1.0 / 5.0);
-        double p23 = 1.0 / 7.0 + s2 * (1.0 / 9.0);
-        double p45 = 1.0 / 11.0 + s2 * (1.0 / 13.0);
-        double p67 = 1.0 / 15.0 + s2 * (1.0 / 17.0);
-        double p89 = 1.0 / 19.0 + s2 * (1.0 / 21.0);
-        P = ((p01 + z2 * p23) + z4 * (p45 + z2 * p67)) + z8 * p89;
+    double jd = z * 128.0 + PSIK_FM_SHIFT;
+    uint64_t j = (psik__fm_bits(jd) - psik__fm_bits(PSIK_FM_SHIFT)) - PSIK_FM_LOG_J0;
+    double c = (jd - PSIK_FM_SHIFT) * (1.0 / 128.0);
+    double d = z - c;                                     /* exact */
+    double invc = psik__fm_log_tab[3 * j];
+    double lch = psik__fm_log_tab[3 * j + 1], lcl = psik__fm_log_tab[3 * j + 2];
+    double rh = d * invc, ph, pl, rl, r2, P, H, e1, H2, e2, l, hi;
+    /* rh c exactly (c has 8 bits: only rh needs splitting) */
+    {
+        const double split = 134217729.0;
+        double cr = split * rh, rhh = cr - (cr - rh), rhl = rh - rhh;
+        ph = rh * c;
+        pl = (rhh * c - ph) + rhl * c;
     }
-    T = 2.0 * sh * s2 * P;
-    psik__fm_two_sum(k * PSIK_FM_LN2HI, 2.0 * sh, &H, &e1);
-    l = e1 + (k * PSIK_FM_LN2LO + (2.0 * sl + T));
-    hi = H + l;
-    *lo = l - (hi - H);
+    rl = ((d - ph) - pl) * invc;
+    r2 = rh * rh;
+    P = (1.0 / 3.0 - rh * 0.25) + r2 * ((0.2 - rh * (1.0 / 6.0)) + r2 * (1.0 / 7.0));
+    psik__fm_two_sum(lch, rh, &H, &e1);
+    psik__fm_two_sum(k * PSIK_FM_LN2HI, H, &H2, &e2);
+    l = e2 + (e1 + (k * PSIK_FM_LN2LO + (lcl + (rl + (r2 * (rh * P) - 0.5 * r2)))));
+    hi = H2 + l;
+    *lo = l - (hi - H2);
     return hi;
 }
 
@@ -233,6 +243,18 @@ PSIK_FM double psik__fm_log1p_fin(double x)
     double e = psik__fm_sel(x >= 1.0, e1, e0);
     hi = psik__fm_log_dd(u, &lo);
     return hi + (lo + e / u);
+}
+
+/* log1p(x) as hi + lo for finite x > -1 (relative error about 2^-60). */
+PSIK_FM double psik__fm_log1p_dd(double x, double *lo)
+{
+    double u = 1.0 + x, l, hi, s, t;
+    double e1 = 1.0 - (u - x), e0 = x - (u - 1.0);
+    double e = psik__fm_sel(x >= 1.0, e1, e0);
+    hi = psik__fm_log_dd(u, &l);
+    psik__fm_two_sum(hi, l + e / u, &s, &t);
+    *lo = t;
+    return s;
 }
 
 /* log1p(x): error < 1 ulp; -inf at -1, NaN below -1 and for NaN, +inf at +inf. */
