@@ -69,57 +69,59 @@ typedef struct dur_sum {
     acc_t sdg;    /* s dG/dh = sum c k y^m r */
 } dur_sum;
 
-/* One mode at suction s (finite, > 0), accumulated into *acc. */
+/* One mode at suction s (finite, > 0), accumulated into *acc; in acc_t
+ * (long double) throughout, so that each mode's terms reach the sums with
+ * errors far below a double's last place. */
 static void mode_add(const double *a, int i, double s, dur_sum *acc)
 {
-    const double alpha = a[A_ALPHA(i)], n = a[A_N(i)], w = a[A_W(i)], c = a[A_C(i)];
-    const double mm = (n - 1.0) / n;
-    const double k = n - 1.0;     /* exact for n >= 1 */
-    double p = alpha * s, S, cS, g, dls, dg, ym, ky, kr_;
-    if (p <= 1.0) {
-        double x = pow(p, n), r = 1.0 / (1.0 + x), y = x * r, l1 = log1p(x);
-        S = exp(-mm * l1);
-        cS = -expm1(-mm * l1);
-        ym = pow(p, k) * S;                   /* y^m = p^(m n) Se */
-        g = ym < 0.5 ? 1.0 - ym : -expm1(mm * log(y));
-        dls = k * alpha * pow(p, n - 1.0) * r;
-        dg = k * alpha * pow(p, k - 1.0) * exp(-(mm + 1.0) * l1);   /* S r in one */
+    const acc_t alpha = a[A_ALPHA(i)], n = a[A_N(i)], w = a[A_W(i)], c = a[A_C(i)];
+    const acc_t mm = (n - 1.0L) / n;
+    const acc_t k = n - 1.0L;     /* exact for n >= 1 */
+    acc_t p = alpha * s, S, cS, g, dls, dg, ym, ky, kr_;
+    if (p <= 1.0L) {
+        acc_t x = powl(p, n), r = 1.0L / (1.0L + x), y = x * r, l1 = log1pl(x);
+        S = expl(-mm * l1);
+        cS = -expm1l(-mm * l1);
+        ym = powl(p, k) * S;                   /* y^m = p^(m n) Se */
+        g = ym < 0.5L ? 1.0L - ym : -expm1l(mm * logl(y));
+        dls = k * alpha * powl(p, n - 1.0L) * r;
+        dg = k * alpha * powl(p, k - 1.0L) * expl(-(mm + 1.0L) * l1);   /* S r in one */
         ky = k * y;
         kr_ = k * ym * r;
-    } else if (p < INFINITY) {
-        double u = pow(p, -n), b = log1p(u), y = 1.0 / (1.0 + u);
-        ym = exp(-mm * b);
-        S = pow(p, -k) * ym;
-        cS = S > 0.25 ? -expm1(-mm * (n * log(p) + b)) : 1.0 - S;
-        g = -expm1(-mm * b);
+    } else if (p < (acc_t)INFINITY) {
+        acc_t u = powl(p, -n), b = log1pl(u), y = 1.0L / (1.0L + u);
+        ym = expl(-mm * b);
+        S = powl(p, -k) * ym;
+        cS = S > 0.25L ? -expm1l(-mm * (n * logl(p) + b)) : 1.0L - S;
+        g = -expm1l(-mm * b);
         dls = k * alpha * y / p;
-        dg = k * alpha * (u * exp(-(mm + 1.0) * b)) / p;           /* ym u y in one */
+        dg = k * alpha * (u * expl(-(mm + 1.0L) * b)) / p;           /* ym u y in one */
         ky = k * y;
         kr_ = k * ym * (u * y);
     } else {
-        /* alpha s beyond the largest double: ln p from the parts */
-        double lp = log(alpha) + log(s);
-        ym = 1.0;
-        S = exp(-k * lp);
-        cS = 1.0;
-        g = mm * exp(-n * lp);
+        /* alpha s beyond the range (only where long double is double) */
+        acc_t lp = logl(alpha) + logl((acc_t)s);
+        ym = 1.0L;
+        S = expl(-k * lp);
+        cS = 1.0L;
+        g = mm * expl(-n * lp);
         dls = k / s;
-        dg = 0.0;
+        dg = 0.0L;
         ky = k;
-        kr_ = 0.0;
+        kr_ = 0.0L;
     }
     {
         /* the last weight carries its rounding remainder */
-        acc_t wt = (acc_t)w + (i == (int)a[A_NMODES] - 1 ? a[A_WLO] : 0.0);
+        acc_t wt = w + (i == (int)a[A_NMODES] - 1 ? a[A_WLO] : 0.0);
         acc_t wS = wt * S;
         acc->se += wS;
         acc->dse += wS * dls;
-        acc->g += (acc_t)c * g;
-        acc->dg += (acc_t)c * dg;
+        acc->g += c * g;
+        acc->dg += c * dg;
         acc->cse += wt * cS;
-        acc->cg += (acc_t)c * ym;
+        acc->cg += c * ym;
         acc->sdse += wS * ky;
-        acc->sdg += (acc_t)c * kr_;
+        acc->sdg += c * kr_;
     }
 }
 
