@@ -10,8 +10,8 @@ count() {   # $1 = name, $2 = output file, $3 = exit status
     p=$(sed -n 's/^\[  PASSED  \] \([0-9]*\) test.*/\1/p' "$2" | tail -1)
     f=$(sed -n 's/^\[  FAILED  \] \([0-9]*\) test.*/\1/p' "$2" | tail -1)
     if [ -z "$p$f" ]; then
-        p=$(sed -n 's/^[a-z_-]*: \([0-9]*\) passed, \([0-9]*\) failed.*/\1/p' "$2" | tail -1)
-        f=$(sed -n 's/^[a-z_-]*: \([0-9]*\) passed, \([0-9]*\) failed.*/\2/p' "$2" | tail -1)
+        p=$(sed -n 's/^[a-z0-9_-]*: \([0-9]*\) passed, \([0-9]*\) failed.*/\1/p' "$2" | tail -1)
+        f=$(sed -n 's/^[a-z0-9_-]*: \([0-9]*\) passed, \([0-9]*\) failed.*/\2/p' "$2" | tail -1)
     fi
     p=${p:-0}; f=${f:-0}
     if [ "$3" -ne 0 ] && [ "$f" -eq 0 ]; then f=1; fi   # crashed or failed outside a test
