@@ -505,13 +505,13 @@ PSIK_API psik_status psik_fit_rank(const psik_fit_result *fits, size_t count,
 
 /**
  * @name Tabulated fast path
- * A table holds theta(h) and ln K(h) of one model as monotone piecewise
+ * A table holds ln Se(h) and ln K(h) of one model as monotone piecewise
  * cubics in ln(-h) (cubic Hermite with the model's exact slopes at the
  * knots, limited by Fritsch & Carlson 1980 so that every piece is
  * monotone), built once into memory the caller provides. The capacity and
  * dK/dh it returns are the exact derivatives of those interpolants, so a
  * scheme that integrates C stays consistent with theta. Evaluation costs
- * one log, one exp and two cubics; heads outside the table's range, NaN
+ * one log, two exps and two cubics; heads outside the table's range, NaN
  * and saturated heads give psik_eval()'s values. A table is plain data
  * (no pointers; it may be copied to another buffer of the same alignment
  * modulo 64 and read by many threads at once).

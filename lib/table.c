@@ -1,15 +1,18 @@
-/* table.c - the tabulated fast path (psik_table_*): theta and ln K of any
+/* table.c - the tabulated fast path (psik_table_*): ln Se and ln K of any
  * model as monotone piecewise cubics in x = ln(suction).
  *
  * Build: knots x_j = ln(-h_wet) + j dx, uniform, up to ln(-h_dry). At each
- * knot psik_eval gives theta, K and their exact slopes in x
- * (d theta/dx = -s C, d ln K/dx = -s (dK/dh) / K). Cubic Hermite pieces
+ * knot psik_eval gives Se, K and their exact slopes in x
+ * (d ln Se/dx = -s C / ((theta_s - theta_r) Se), d ln K/dx = -s (dK/dh) / K).
+ * ln Se rather than theta: theta = theta_r + (theta_s - theta_r) e^(ln Se)
+ * then keeps its relative accuracy, and C keeps its own where theta is
+ * within rounding of theta_s or theta_r (C far below theta's last digit). Cubic Hermite pieces
  * with exact slopes are O(dx^4); the Fritsch-Carlson (1980) limiter then
  * scales the two slopes of any interval where alpha^2 + beta^2 > 9
  * (alpha, beta = slope / secant) and zeroes them where the secant is 0,
  * which makes every piece monotone, so C >= 0 and dK/dh >= 0 everywhere.
- * Each interval stores its eight cubic coefficients (theta, ln K), in
- * t = (x - x_j)/dx, so an evaluation is one log, one exp and two cubics.
+ * Each interval stores its eight cubic coefficients (ln Se, ln K), in
+ * t = (x - x_j)/dx, so an evaluation is one log, two exps and two cubics.
  * C and dK/dh are the exact derivatives of the interpolants (a
  * mass-conservative scheme that integrates C stays consistent with
  * theta), not the model's own.
@@ -18,8 +21,9 @@
  * inside every interval (t = 1/8 ... 7/8); the largest relative errors,
  * times 1.5 for the peaks between samples, are the reported bounds.
  * tests/unit/test_table.c checks them with 64 random points per interval.
- * K below 1e-280 ks is left out of the K bound (ln K is clamped at
- * ln(1e-300) so that an underflowed K does not poison its neighbours).
+ * K below 1e-280 ks is left out of the K bound (ln K and ln Se are clamped
+ * at ln(1e-300) so that an underflowed value does not poison its
+ * neighbours).
  *
  * Outside [h_dry, h_wet] (and for NaN, saturated heads) every evaluator
  * returns psik_eval's values, so a table is never less safe than the model.
@@ -73,13 +77,18 @@ PSIK_API size_t psik_table_bytes(size_t knots)
     return header_bytes() + 8 * (knots - 1) * sizeof(double) + TABLE_ALIGN;
 }
 
-/* Knot values of theta and ln K with their slopes in x = ln s. */
+/* Knot values of ln Se and ln K with their slopes in x = ln s. */
 static void knot(const psik_model *m, double s, double *th, double *dth, double *lk, double *dlk)
 {
     psik_state st;
     psik_eval(m, -s, &st);
-    *th = st.theta;
-    *dth = -s * st.capacity;
+    if (st.se > 1e-300) {
+        *th = log(st.se);
+        *dth = -s * st.capacity / ((m->theta_s - m->theta_r) * st.se);
+    } else {
+        *th = LNK_FLOOR;
+        *dth = 0.0;
+    }
     if (st.k > m->ks * 1e-300) {
         *lk = log(st.k);
         *dlk = -s * st.dk_dh / st.k;
@@ -124,7 +133,7 @@ static void cubic(double f0, double f1, double d0, double d1, double dx, double 
  * compiler knows the output stores cannot change them. */
 typedef struct tb_par {
     const double *coef;
-    double x0, inv_dx, umax, tr, ts, ks;
+    double x0, inv_dx, umax, tr, ts, dts, ks;
 } tb_par;
 
 static tb_par tb_par_of(const struct psik_table *t)
@@ -136,6 +145,7 @@ static tb_par tb_par_of(const struct psik_table *t)
     p.umax = t->umax;
     p.tr = t->tr;
     p.ts = t->ts;
+    p.dts = t->dts;
     p.ks = t->ks;
     return p;
 }
@@ -147,7 +157,7 @@ PSIK_FM void interp(const tb_par *t, double h, double *th, double *kk, double *c
     double s = -h, x = psik__fm_log(s);
     double u = (x - t->x0) * t->inv_dx;
     double uc = psik__fm_sel(u < t->umax, u, t->umax);
-    double j, f, v, dv, lk, dlk, k, inv_s = 1.0 / s;
+    double j, f, v, dv, lk, dlk, k, se, inv_s = 1.0 / s;
     double c0, c1, c2, c3, c4, c5, c6, c7;
     const double *c = t->coef;
     uint64_t q;
@@ -165,12 +175,13 @@ PSIK_FM void interp(const tb_par *t, double h, double *th, double *kk, double *c
     dv = c1 + f * (2.0 * c2 + f * (3.0 * c3));
     lk = c4 + f * (c5 + f * (c6 + f * c7));
     dlk = c5 + f * (2.0 * c6 + f * (3.0 * c7));
+    se = psik__fm_exp(v);
     k = psik__fm_exp(lk);
-    v = psik__fm_sel(v > t->ts, t->ts, v);
-    v = psik__fm_sel(v < t->tr, t->tr, v);
-    *th = v;
+    se = psik__fm_sel(se > 1.0, 1.0, se);
+    v = t->tr + t->dts * se;
+    *th = psik__fm_sel(v > t->ts, t->ts, v);
     *kk = psik__fm_sel(k > t->ks, t->ks, k);
-    *cc = psik__fm_sel(dv < 0.0, -dv * t->inv_dx * inv_s, 0.0);
+    *cc = psik__fm_sel(dv < 0.0, -dv * t->inv_dx * inv_s * (t->dts * se), 0.0);
     *dk = psik__fm_sel(dlk < 0.0, -dlk * t->inv_dx * inv_s * k, 0.0);
 }
 
