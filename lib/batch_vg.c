@@ -1,5 +1,6 @@
-/* batch_vg.c - fused and vectorised van Genuchten evaluation (vgm, vgm_ae,
- * vgb): the point that psik_eval uses, and the psik_eval_batch kernels.
+/* batch_vg.c - fused and vectorised van Genuchten evaluation: the point that
+ * psik_eval uses, and the psik_eval_batch kernels (the core covers vgm,
+ * vgm_ae and vgb; vg.c uses it for vgm, see fast_vg.h).
  *
  * Method. With p = alpha s and lp = log p carried in two doubles
  * (fastmath.h), t = n lp, a = exp(-|t|) (x on the wet side p <= 1, 1/x on
@@ -76,7 +77,9 @@ PSIK_FM int vg_core(const psik_vgc *c, double s, int half, int model,
     t2 = -tl;
     a = psik__fm_exp_dd(psik__fm_sel(wet, th, t1), psik__fm_sel(wet, tl, t2));
     b = psik__fm_log1p_dd(a, &bl);
-    psik__fm_mul_dd(k, lph, lpl, &kh, &kl);
+    /* k lp = n lp - (n - k) lp, with n - k = 1 or 2 exactly */
+    psik__fm_two_sum(th, -(n - k) * lph, &kh, &kl);
+    kl = kl + (tl - (n - k) * lpl);
     psik__fm_mul_dd(m, b, bl, &mb, &mbl);
     t1 = -kh;
     psik__fm_two_sum(psik__fm_sel(wet, 0.0, t1), -mb, &e1h, &t1);
@@ -157,7 +160,9 @@ PSIK_HIDDEN int psik__vg_se_fast(const psik_vgc *c, double s, double *se)
     t2 = -tl;
     a = psik__fm_exp_dd(psik__fm_sel(wet, th, t1), psik__fm_sel(wet, tl, t2));
     b = psik__fm_log1p_dd(a, &bl);
-    psik__fm_mul_dd(k, lph, lpl, &kh, &kl);
+    /* k lp = n lp - (n - k) lp, with n - k = 1 or 2 exactly */
+    psik__fm_two_sum(th, -(n - k) * lph, &kh, &kl);
+    kl = kl + (tl - (n - k) * lpl);
     psik__fm_mul_dd(m, b, bl, &mb, &mbl);
     t1 = -kh;
     psik__fm_two_sum(psik__fm_sel(wet, 0.0, t1), -mb, &e1h, &t1);
@@ -234,22 +239,17 @@ PSIK_FM void vg_block_body(const vg_blk *bk, int half, int model, int cnt,
 
 typedef void (*vg_block_fn)(VG_BLOCK_ARGS);
 
+/* Only the rows that set .batch get block loops (vgm now; the core also
+ * serves vgm_ae and vgb, whose rows can opt in once their accuracy with it
+ * is shown, see fast_vg.h). */
 #define VG_VARIANTS(suffix, attr)                                                     \
     attr static void vgm_half_##suffix(VG_BLOCK_ARGS)                                 \
     { vg_block_body(bk, 1, PSIK_VGC_MUALEM, cnt, h, th, kk, cc, dk, bad); }           \
     attr static void vgm_any_##suffix(VG_BLOCK_ARGS)                                  \
     { vg_block_body(bk, 0, PSIK_VGC_MUALEM, cnt, h, th, kk, cc, dk, bad); }           \
-    attr static void vgae_half_##suffix(VG_BLOCK_ARGS)                                \
-    { vg_block_body(bk, 1, PSIK_VGC_MUALEM_AE, cnt, h, th, kk, cc, dk, bad); }        \
-    attr static void vgae_any_##suffix(VG_BLOCK_ARGS)                                 \
-    { vg_block_body(bk, 0, PSIK_VGC_MUALEM_AE, cnt, h, th, kk, cc, dk, bad); }        \
-    attr static void vgb_##suffix(VG_BLOCK_ARGS)                                      \
-    { vg_block_body(bk, 1, PSIK_VGC_BURDINE, cnt, h, th, kk, cc, dk, bad); }          \
     static vg_block_fn pick_##suffix(const psik_vgc *c)                               \
     {                                                                                 \
-        if (c->model == PSIK_VGC_BURDINE) return vgb_##suffix;                        \
-        if (c->model == PSIK_VGC_MUALEM_AE)                                           \
-            return c->l == 0.5 ? vgae_half_##suffix : vgae_any_##suffix;              \
+        if (c->model != PSIK_VGC_MUALEM) return NULL;                                 \
         return c->l == 0.5 ? vgm_half_##suffix : vgm_any_##suffix;                    \
     }
 
@@ -285,6 +285,17 @@ PSIK_HIDDEN void psik__vg_batch(const psik_model *m, const psik_vgc *c, size_t c
     bk.ts = m->theta_s;
     bk.dts = m->theta_s - m->theta_r;
     bk.ks = m->ks;
+    if (fn == NULL) {   /* no block loop for this model: psik_eval per head */
+        for (i0 = 0; i0 < count; i0++) {
+            psik_state st;
+            psik_eval(m, h[i0], &st);
+            if (theta) theta[i0] = st.theta;
+            if (k) k[i0] = st.k;
+            if (capacity) capacity[i0] = st.capacity;
+            if (dk_dh) dk_dh[i0] = st.dk_dh;
+        }
+        return;
+    }
     for (i0 = 0; i0 < count; i0 += BLK) {
         int cnt = count - i0 < BLK ? (int)(count - i0) : BLK, i;
         double *th = theta ? theta + i0 : s_th;

@@ -104,10 +104,10 @@ PSIK_FM void psik__fm_mul_dd(double c, double xh, double xl, double *ph, double 
  * the Taylor series to r^6 (truncation below 2^-70); 2^(j/128) from the
  * table in two parts; 2^e as the product of two powers of two s1 s2 with
  * normal exponents, so that the final multiply by s2 is the only rounding
- * also when the result is subnormal. Outputs: m = 2^(j/128) e^r - 1 split
- * as th (2^(j/128), hi part) and tl (the rest), and s1, s2. */
-PSIK_FM void psik__fm_exp_core(double x, double lo, double *th, double *tl, double *s1,
-                               double *s2)
+ * also when the result is subnormal. Outputs: 2^(j/128) = thi + tlo,
+ * e^(r + rl) - 1 = r + ql, and s1, s2. */
+PSIK_FM void psik__fm_exp_core(double x, double lo, double *thi_o, double *tlo_o,
+                               double *r_o, double *ql_o, double *s1, double *s2)
 {
     double xc = psik__fm_sel(x > 710.0, 710.0, x);
     double sh, k, r0, c, r, rl, p, ql, thi, tlo;
@@ -129,9 +129,10 @@ PSIK_FM void psik__fm_exp_core(double x, double lo, double *th, double *tl, doub
     e2 = ku >> 7;                                          /* e + 2048 */
     thi = psik__fm_exp_tab[2 * j];
     tlo = psik__fm_exp_tab[2 * j + 1];
-    /* 2^(j/128) e^(r + rl) = thi + [tlo + thi (r + ql) + tlo (r + ql)] */
-    *th = thi;
-    *tl = tlo + (thi + tlo) * (r + ql);
+    *thi_o = thi;
+    *tlo_o = tlo;
+    *r_o = r;
+    *ql_o = ql;
     k1 = e2 >> 1;
     k2 = e2 - k1;
     *s1 = psik__fm_double((k1 - 1u) << 52);                /* 2^(k1 - 1024) */
@@ -142,8 +143,10 @@ PSIK_FM void psik__fm_exp_core(double x, double lo, double *th, double *tl, doub
  * subnormal below; 0 below -745.2, +inf above 709.8, NaN for NaN. */
 PSIK_FM double psik__fm_exp_dd(double x, double lo)
 {
-    double th, tl, s1, s2;
-    psik__fm_exp_core(x, lo, &th, &tl, &s1, &s2);
+    double th, tlo, r, ql, s1, s2, tl;
+    psik__fm_exp_core(x, lo, &th, &tlo, &r, &ql, &s1, &s2);
+    /* 2^(j/128) e^(r + rl) = thi + [tlo + (thi + tlo)(r + ql)] */
+    tl = tlo + (th + tlo) * (r + ql);
     return ((th + tl) * s1) * s2;
 }
 
@@ -153,19 +156,23 @@ PSIK_FM double psik__fm_exp(double x)
 }
 
 /* exp(x + lo) and expm1(x + lo) together (one reduction, one polynomial):
- * expm1 = (2^e th - 1) + 2^e tl with 2^e th - 1 carried exactly in two
- * parts, so the only roundings are the last sum and tl's (< 1 ulp); above
- * x = 40 expm1 = exp to rounding. */
+ * expm1 = (2^e thi - 1) + 2^e thi r + 2^e [thi ql + tlo (1 + r + ql)], with
+ * the first two terms, which cancel for small |x|, summed exactly (two_sum,
+ * exact product), so the error stays below 1 ulp; above x = 40
+ * expm1 = exp to rounding. */
 PSIK_FM void psik__fm_exp_expm1_dd(double x, double lo, double *e, double *em1)
 {
-    double th, tl, s1, s2, two_k, ex, em;
-    psik__fm_exp_core(x, lo, &th, &tl, &s1, &s2);
+    double th, tlo, r, ql, s1, s2, two_k, ex, em, tl;
+    psik__fm_exp_core(x, lo, &th, &tlo, &r, &ql, &s1, &s2);
+    tl = tlo + (th + tlo) * (r + ql);
     ex = ((th + tl) * s1) * s2;
     two_k = s1 * s2;
-    {   /* 2^e th - 1 exactly as sa + ea (2^e th is exact where it matters) */
-        double sa, ea;
-        psik__fm_two_sum(two_k * th, -1.0, &sa, &ea);
-        em = sa + (ea + two_k * tl);
+    {
+        double sa, ea, p, pe, u, ue;
+        psik__fm_two_sum(two_k * th, -1.0, &sa, &ea);      /* 2^e thi - 1 */
+        psik__fm_two_prod(th, r, &p, &pe);                  /* thi r */
+        psik__fm_two_sum(sa, two_k * p, &u, &ue);
+        em = u + (ue + (ea + two_k * (pe + (th * ql + tlo * (1.0 + (r + ql))))));
     }
     *e = ex;
     *em1 = psik__fm_sel(x > 40.0, ex, em);
