@@ -1,6 +1,5 @@
-/* batch_vg.c - fused and vectorised van Genuchten evaluation: the point that
- * psik_eval uses, and the psik_eval_batch kernels (the core covers vgm,
- * vgm_ae and vgb; vg.c uses it for vgm, see fast_vg.h).
+/* batch_vg.c - fused and vectorised van Genuchten evaluation (vgm, vgm_ae,
+ * vgb): the point that psik_eval uses, and the psik_eval_batch kernels.
  *
  * Method. With p = alpha s and lp = log p carried in two doubles
  * (fastmath.h), t = n lp, a = exp(-|t|) (x on the wet side p <= 1, 1/x on
@@ -149,8 +148,6 @@ PSIK_HIDDEN int psik__vg_se_fast(const psik_vgc *c, double s, double *se)
     double p = c->alpha * s;
     double lph, lpl, th, tl, a, b, bl, kh, kl, mb, mbl, e1h, e1l, t1, t2, S;
     int wet;
-    if (c->model != PSIK_VGC_MUALEM)
-        return 0;
     lph = psik__fm_log_dd(p, &lpl);
     psik__fm_mul_dd(n, lph, lpl, &th, &tl);
     if (!((p >= DBL_MIN) & (p <= DBL_MAX) & (th >= -700.0) & (th <= 700.0)))
@@ -169,6 +166,12 @@ PSIK_HIDDEN int psik__vg_se_fast(const psik_vgc *c, double s, double *se)
     t2 = -kl;
     e1l = (t1 - mbl) + psik__fm_sel(wet, 0.0, t2);
     S = psik__fm_exp_dd(e1h, e1l);
+    if (c->model == PSIK_VGC_MUALEM_AE) {   /* as in vg_core */
+        double xe = c->xe;
+        double sw = psik__fm_exp(-m * psik__fm_log1p_fin((a - xe) / (1.0 + xe)));
+        double sq = S / c->sc;
+        S = psik__fm_sel(wet & (xe <= 1.0), sw, sq);
+    }
     *se = S;
     return 1;
 }
@@ -239,17 +242,22 @@ PSIK_FM void vg_block_body(const vg_blk *bk, int half, int model, int cnt,
 
 typedef void (*vg_block_fn)(VG_BLOCK_ARGS);
 
-/* Only the rows that set .batch get block loops (vgm now; the core also
- * serves vgm_ae and vgb, whose rows can opt in once their accuracy with it
- * is shown, see fast_vg.h). */
 #define VG_VARIANTS(suffix, attr)                                                     \
     attr static void vgm_half_##suffix(VG_BLOCK_ARGS)                                 \
     { vg_block_body(bk, 1, PSIK_VGC_MUALEM, cnt, h, th, kk, cc, dk, bad); }           \
     attr static void vgm_any_##suffix(VG_BLOCK_ARGS)                                  \
     { vg_block_body(bk, 0, PSIK_VGC_MUALEM, cnt, h, th, kk, cc, dk, bad); }           \
+    attr static void vgae_half_##suffix(VG_BLOCK_ARGS)                                \
+    { vg_block_body(bk, 1, PSIK_VGC_MUALEM_AE, cnt, h, th, kk, cc, dk, bad); }        \
+    attr static void vgae_any_##suffix(VG_BLOCK_ARGS)                                 \
+    { vg_block_body(bk, 0, PSIK_VGC_MUALEM_AE, cnt, h, th, kk, cc, dk, bad); }        \
+    attr static void vgb_##suffix(VG_BLOCK_ARGS)                                      \
+    { vg_block_body(bk, 1, PSIK_VGC_BURDINE, cnt, h, th, kk, cc, dk, bad); }          \
     static vg_block_fn pick_##suffix(const psik_vgc *c)                               \
     {                                                                                 \
-        if (c->model != PSIK_VGC_MUALEM) return NULL;                                 \
+        if (c->model == PSIK_VGC_BURDINE) return vgb_##suffix;                        \
+        if (c->model == PSIK_VGC_MUALEM_AE)                                           \
+            return c->l == 0.5 ? vgae_half_##suffix : vgae_any_##suffix;              \
         return c->l == 0.5 ? vgm_half_##suffix : vgm_any_##suffix;                    \
     }
 

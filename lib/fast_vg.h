@@ -23,14 +23,10 @@ enum { PSIK_VGC_MUALEM = 1, PSIK_VGC_BURDINE, PSIK_VGC_MUALEM_AE };
  * (tests/unit/test_accuracy.c) and equal the batch kernel's bit for bit. */
 PSIK_HIDDEN int psik__vg_point_fast(const psik_vgc *c, double s, psik_point *out);
 
-/* Se alone, the same bits as psik__vg_point_fast's (vgm only; 0 as above
- * or for the other models). */
+/* Se alone, the same bits as psik__vg_point_fast's (0 as above). */
 PSIK_HIDDEN int psik__vg_se_fast(const psik_vgc *c, double s, double *se);
 
-/* psik_eval_batch for a van Genuchten row (see psik_family.batch).
- * Only vgm has vectorised block loops: with the fused core, vgm_ae's dK/dh
- * measured 4.5 ulp and vgb's 6 ulp against the mpmath tables (limit 4),
- * so those rows keep vg.c's own path until that is improved. */
+/* psik_eval_batch for a van Genuchten row (see psik_family.batch). */
 PSIK_HIDDEN void psik__vg_batch(const psik_model *m, const psik_vgc *c, size_t count,
                                 const double *h, double *theta, double *k,
                                 double *capacity, double *dk_dh);

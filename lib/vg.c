@@ -440,6 +440,9 @@ static double vgm_ae_se_of(const double *a, const vg_pt *q)
 static void vgm_ae_point(const psik_model *m, double s, psik_point *out)
 {
     vg_pt q;
+    psik_vgc c = vg_coef(m, PSIK_VGC_MUALEM_AE);
+    if (psik__vg_point_fast(&c, s, out))
+        return;
     vg_from_s(m->aux, s, &q);
     vgm_ae_fill(m->aux, &q, vgm_ae_se_of(m->aux, &q), out);
 }
@@ -454,8 +457,19 @@ static void vgm_ae_point_se(const psik_model *m, double se, psik_point *out)
 static double vgm_ae_se(const psik_model *m, double s)
 {
     vg_pt q;
+    double se;
+    psik_vgc c = vg_coef(m, PSIK_VGC_MUALEM_AE);
+    if (psik__vg_se_fast(&c, s, &se))
+        return se;
     vg_from_s(m->aux, s, &q);
     return vgm_ae_se_of(m->aux, &q);
+}
+
+static void vgm_ae_batch(const psik_model *m, size_t count, const double *h,
+                         double *theta, double *k, double *capacity, double *dk_dh)
+{
+    psik_vgc c = vg_coef(m, PSIK_VGC_MUALEM_AE);
+    psik__vg_batch(m, &c, count, h, theta, k, capacity, dk_dh);
 }
 
 static double vgm_ae_kr(const psik_model *m, double s)
@@ -486,6 +500,7 @@ const psik_family psik__fam_vgm_ae = {
     .kr = vgm_ae_kr,
     .point_se = vgm_ae_point_se,
     .suction = vgm_ae_suction,
+    .batch = vgm_ae_batch,
 };
 
 /* ------------------------------------------------------------- vg_free_m */
@@ -623,6 +638,9 @@ static void vgb_fill(const vg_pt *q, psik_point *out)
 static void vgb_point(const psik_model *m, double s, psik_point *out)
 {
     vg_pt q;
+    psik_vgc c = vg_coef(m, PSIK_VGC_BURDINE);
+    if (psik__vg_point_fast(&c, s, out))
+        return;
     vg_from_s(m->aux, s, &q);
     vgb_fill(&q, out);
 }
@@ -632,6 +650,23 @@ static void vgb_point_se(const psik_model *m, double se, psik_point *out)
     vg_pt q;
     vg_from_se(m->aux, se, &q);
     vgb_fill(&q, out);
+}
+
+/* Se through the fused core (the same bits as psik_eval's Se). */
+static double vgb_se(const psik_model *m, double s)
+{
+    double se;
+    psik_vgc c = vg_coef(m, PSIK_VGC_BURDINE);
+    if (psik__vg_se_fast(&c, s, &se))
+        return se;
+    return vg_se(m, s);
+}
+
+static void vgb_batch(const psik_model *m, size_t count, const double *h,
+                      double *theta, double *k, double *capacity, double *dk_dh)
+{
+    psik_vgc c = vg_coef(m, PSIK_VGC_BURDINE);
+    psik__vg_batch(m, &c, count, h, theta, k, capacity, dk_dh);
 }
 
 static double vgb_kr(const psik_model *m, double s)
@@ -651,8 +686,9 @@ const psik_family psik__fam_vgb = {
     .check = vgb_check,
     .prepare = vgb_prepare,
     .point = vgb_point,
-    .se = vg_se,
+    .se = vgb_se,
     .kr = vgb_kr,
     .point_se = vgb_point_se,
     .suction = vg_suction,
+    .batch = vgb_batch,
 };
