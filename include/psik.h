@@ -525,7 +525,7 @@ PSIK_API psik_status psik_fit_rank(const psik_fit_result *fits, size_t count,
 /** Default knot density of a table, in knots per decade of suction: with
  *  it the tests measure theta within 1e-9 and K within 1e-7 (relative) for
  *  van Genuchten-Mualem soils with n up to 3 (tests/unit/test_table.c). */
-#define PSIK_TABLE_DENSITY 200.0
+#define PSIK_TABLE_DENSITY 400.0
 
 /** An interpolation table (opaque; lives in caller-provided memory). */
 typedef struct psik_table psik_table;

@@ -44,7 +44,9 @@ struct psik_table {
     unsigned int magic;
     unsigned int abi_size;
     size_t knots;
-    double x0, dx, inv_dx, umax;  /* umax = knots - 1 */
+    uint64_t e0;                  /* biased exponent of the first octave */
+    uint64_t lg;                  /* N = 2^lg knots per octave */
+    uint64_t nint;                /* knots - 1 intervals */
     double h_dry, h_wet;
     double tr, dts, ts, ks;
     double err_theta, err_k;
@@ -57,17 +59,34 @@ static size_t header_bytes(void)
     return offsetof(struct psik_table, coef);
 }
 
+/* Biased exponent of s > 0 normal. */
+static uint64_t bexp(double s)
+{
+    return psik__fm_bits(s) >> 52;
+}
+
+/* log2 N for a density in knots per decade: the power of two at or above. */
+static int lg_of(double density)
+{
+    int lg = 0;
+    double per_octave = density * 0.30102999566398120;
+    while ((double)(1 << lg) < per_octave && lg < 20)
+        lg++;
+    return lg;
+}
+
 PSIK_API size_t psik_table_knots(double h_dry, double h_wet, double density)
 {
-    double dec;
+    uint64_t oct;
     if (!(density > 0.0))
         density = PSIK_TABLE_DENSITY;
-    if (!(h_dry < h_wet && h_wet < 0.0) || !isfinite(h_dry) || !(density < 1e6))
+    if (!(h_dry < h_wet && h_wet < 0.0) || !isfinite(h_dry) || !(density < 1e6) ||
+        -h_wet < DBL_MIN)
         return 0;
-    dec = log10(h_dry / h_wet);
-    if (!(dec * density < 1e8))
+    oct = bexp(-h_dry) - bexp(-h_wet) + 1;
+    if (oct << lg_of(density) > ((uint64_t)1 << 27))
         return 0;
-    return (size_t)ceil(dec * density) + 1;
+    return (size_t)(oct << lg_of(density)) + 1;
 }
 
 PSIK_API size_t psik_table_bytes(size_t knots)
@@ -133,16 +152,18 @@ static void cubic(double f0, double f1, double d0, double d1, double dx, double 
  * compiler knows the output stores cannot change them. */
 typedef struct tb_par {
     const double *coef;
-    double x0, inv_dx, umax, tr, ts, dts, ks;
+    uint64_t e0, lg, nint;
+    double fn, tr, ts, dts, ks;   /* fn = N */
 } tb_par;
 
 static tb_par tb_par_of(const struct psik_table *t)
 {
     tb_par p;
     p.coef = t->coef;
-    p.x0 = t->x0;
-    p.inv_dx = t->inv_dx;
-    p.umax = t->umax;
+    p.e0 = t->e0;
+    p.lg = t->lg;
+    p.nint = t->nint;
+    p.fn = (double)((uint64_t)1 << t->lg);
     p.tr = t->tr;
     p.ts = t->ts;
     p.dts = t->dts;
@@ -151,24 +172,22 @@ static tb_par tb_par_of(const struct psik_table *t)
 }
 
 /* The interpolated state at a head inside the table; the same arithmetic
- * for psik_table_eval and the batch loop. */
+ * for psik_table_eval and the batch loop. From the bits of s = -h: the
+ * octave (exponent), the interval i (top lg bits of the significand) and
+ * f in [0, 1) (the rest, exactly); no log, no conversion instruction. */
 PSIK_FM void interp(const tb_par *t, double h, double *th, double *kk, double *cc, double *dk)
 {
-    double s = -h, x = psik__fm_log(s);
-    double u = (x - t->x0) * t->inv_dx;
-    double uc = psik__fm_sel(u < t->umax, u, t->umax);
-    double j, f, v, dv, lk, dlk, k, se, inv_s = 1.0 / s;
+    double s = -h;
+    uint64_t b = psik__fm_bits(s), eb = b >> 52, man = b & 0xfffffffffffffULL;
+    uint64_t q = ((eb - t->e0) << t->lg) + (man >> (52 - t->lg));
+    uint64_t rest = (man << t->lg) & 0xfffffffffffffULL;
+    double f = psik__fm_double(0x3ff0000000000000ULL | rest) - 1.0;
+    double scale = psik__fm_double((2046u - eb) << 52) * t->fn;   /* N 2^-e */
+    double v, dv, lk, dlk, k, se, vt;
     double c0, c1, c2, c3, c4, c5, c6, c7;
     const double *c = t->coef;
-    uint64_t q;
-    uc = psik__fm_sel(uc > 0.0, uc, 0.0);
-    j = (uc + PSIK_FM_SHIFT) - PSIK_FM_SHIFT;         /* nearest integer */
-    j = psik__fm_sel(j > uc, j - 1.0, j);             /* floor */
-    j = psik__fm_sel(j > t->umax - 1.0, t->umax - 1.0, j);
-    f = uc - j;
-    /* the integer j from the bits of j + 1.5 2^52 (no conversion instruction
-     * needed, so the gathers below vectorise on every x86-64 level) */
-    q = 8 * ((psik__fm_bits(j + PSIK_FM_SHIFT) - psik__fm_bits(PSIK_FM_SHIFT)) & 0xfffffffu);
+    q = q < t->nint ? q : t->nint - 1;     /* out-of-range lanes: any valid row */
+    q *= 8;
     c0 = c[q]; c1 = c[q + 1]; c2 = c[q + 2]; c3 = c[q + 3];
     c4 = c[q + 4]; c5 = c[q + 5]; c6 = c[q + 6]; c7 = c[q + 7];
     v = c0 + f * (c1 + f * (c2 + f * c3));
@@ -178,11 +197,12 @@ PSIK_FM void interp(const tb_par *t, double h, double *th, double *kk, double *c
     se = psik__fm_exp(v);
     k = psik__fm_exp(lk);
     se = psik__fm_sel(se > 1.0, 1.0, se);
-    v = t->tr + t->dts * se;
-    *th = psik__fm_sel(v > t->ts, t->ts, v);
+    vt = t->tr + t->dts * se;
+    *th = psik__fm_sel(vt > t->ts, t->ts, vt);
     *kk = psik__fm_sel(k > t->ks, t->ks, k);
-    *cc = psik__fm_sel(dv < 0.0, -dv * t->inv_dx * inv_s * (t->dts * se), 0.0);
-    *dk = psik__fm_sel(dlk < 0.0, -dlk * t->inv_dx * inv_s * k, 0.0);
+    /* d/dh = -(d/ds) = -(N 2^-e) d/df */
+    *cc = psik__fm_sel(dv < 0.0, -dv * scale * (t->dts * se), 0.0);
+    *dk = psik__fm_sel(dlk < 0.0, -dlk * scale * k, 0.0);
 }
 
 static int inside(const struct psik_table *t, double h)
@@ -197,7 +217,8 @@ PSIK_API psik_status psik_table_build(const psik_model *m, double h_dry, double 
     struct psik_table *t;
     uintptr_t addr;
     size_t need = psik_table_bytes(knots), i, pad;
-    double x0, x1, dx, th0, dth0, lk0, dlk0, eth = 0.0, ek = 0.0;
+    double th0, dth0, lk0, dlk0, eth = 0.0, ek = 0.0, fn, s_wet;
+    uint64_t e0, oct, lg;
     tb_par tp;
     if (table != NULL)
         *table = NULL;
@@ -209,7 +230,21 @@ PSIK_API psik_status psik_table_build(const psik_model *m, double h_dry, double 
         return PSIK_EDOMAIN;
     if (bytes < need)
         return PSIK_ENOMEM;
-    /* The table covers unsaturated heads only. */
+    s_wet = -h_wet;
+    if (s_wet < DBL_MIN)
+        return PSIK_EDOMAIN;
+    /* knots must come from psik_table_knots for this range: N a power of 2 */
+    e0 = bexp(s_wet);
+    oct = bexp(-h_dry) - e0 + 1;
+    if ((knots - 1) % oct != 0)
+        return PSIK_EINVAL;
+    for (lg = 0; ((uint64_t)1 << lg) < (knots - 1) / oct; lg++)
+        ;
+    if (((uint64_t)1 << lg) != (knots - 1) / oct || lg > 20)
+        return PSIK_EINVAL;
+    fn = (double)((uint64_t)1 << lg);
+    /* The table answers for unsaturated heads only (the knots below the
+     * saturation head take the model's left limit there). */
     if (h_wet >= m->h_sat)
         h_wet = m->h_sat * (1.0 + 4.0 * DBL_EPSILON);
     if (!(h_dry < h_wet && h_wet < 0.0))
@@ -218,14 +253,10 @@ PSIK_API psik_status psik_table_build(const psik_model *m, double h_dry, double 
     pad = (TABLE_ALIGN - addr % TABLE_ALIGN) % TABLE_ALIGN;
     t = (struct psik_table *)(void *)((unsigned char *)mem + pad);
     memset(t, 0, header_bytes());
-    x0 = log(-h_wet);
-    x1 = log(-h_dry);
-    dx = (x1 - x0) / (double)(knots - 1);
     t->knots = knots;
-    t->x0 = x0;
-    t->dx = dx;
-    t->inv_dx = 1.0 / dx;
-    t->umax = (double)(knots - 1);
+    t->e0 = e0;
+    t->lg = lg;
+    t->nint = knots - 1;
     t->h_wet = h_wet;
     t->h_dry = h_dry;
     t->tr = m->theta_r;
@@ -233,45 +264,48 @@ PSIK_API psik_status psik_table_build(const psik_model *m, double h_dry, double 
     t->dts = m->theta_s - m->theta_r;
     t->ks = m->ks;
     t->model = *m;
-    /* Knot values, then the limited slopes, then the coefficients. The
-     * coefficient array first holds f, d per knot in slots 0..3 of the
-     * interval that starts there (knot j -> interval j; the last knot's
-     * values go to a small local buffer). */
+    /* Knot values (ln Se, its slope in x = ln s, ln K, its slope) in slots
+     * 0..3 of the row of the interval that starts there (the last knot's go
+     * to a local buffer); then, interval by interval, the slopes per unit f
+     * (ds/df / s = 1/(N + i') at the left end, 1/(N + i' + 1) at the right),
+     * the Fritsch-Carlson limiter on that interval's two slopes, and the
+     * coefficients, which overwrite the row once its knot has been read. */
     {
         double last[4];
+        const size_t mask = ((size_t)1 << lg) - 1;
         for (i = 0; i < knots; i++) {
             double *slot = i + 1 < knots ? t->coef + 8 * i : last;
-            double s = exp(x0 + dx * (double)i);
-            if (i == 0) s = -h_wet;
-            if (i + 1 == knots) s = -h_dry;
+            /* s = 2^e (1 + i'/N): octave e = e0 + i / N, i' = i mod N */
+            double s = ldexp(1.0 + (double)(i & mask) / fn, (int)(e0 + (i >> lg)) - 1023);
+            if (s <= -m->h_sat)   /* left limit at the saturation head */
+                s = -m->h_sat * (1.0 + 4.0 * DBL_EPSILON);
             knot(m, s, &slot[0], &slot[1], &slot[2], &slot[3]);
         }
-        /* limiter, interval by interval, on the shared knot slopes */
-        for (i = 0; i + 1 < knots; i++) {
-            double *a = t->coef + 8 * i;
-            double *b = i + 2 < knots ? t->coef + 8 * (i + 1) : last;
-            limit((b[0] - a[0]) / dx, &a[1], &b[1]);
-            limit((b[2] - a[2]) / dx, &a[3], &b[3]);
-        }
-        /* coefficients, walking forward with the left knot saved */
         th0 = t->coef[0]; dth0 = t->coef[1]; lk0 = t->coef[2]; dlk0 = t->coef[3];
         for (i = 0; i + 1 < knots; i++) {
             double *c = t->coef + 8 * i;
             const double *b = i + 2 < knots ? t->coef + 8 * (i + 1) : last;
             double th1 = b[0], dth1 = b[1], lk1 = b[2], dlk1 = b[3];
-            cubic(th0, th1, dth0, dth1, dx, c);
-            cubic(lk0, lk1, dlk0, dlk1, dx, c + 4);
+            double w0 = 1.0 / (fn + (double)(i & mask)), w1 = 1.0 / (fn + (double)(i & mask) + 1.0);
+            double a0 = dth0 * w0, a1 = dth1 * w1, k0 = dlk0 * w0, k1 = dlk1 * w1;
+            limit(th1 - th0, &a0, &a1);
+            limit(lk1 - lk0, &k0, &k1);
+            cubic(th0, th1, a0, a1, 1.0, c);
+            cubic(lk0, lk1, k0, k1, 1.0, c + 4);
             th0 = th1; dth0 = dth1; lk0 = lk1; dlk0 = dlk1;
         }
     }
     t->magic = TABLE_MAGIC;
     t->abi_size = (unsigned int)sizeof(psik_model);
-    /* error estimate */
+    /* error estimate: 7 points inside every interval */
     tp = tb_par_of(t);
     for (i = 0; i + 1 < knots; i++) {
         int q;
+        double s0 = ldexp(1.0 + (double)(i & (((size_t)1 << lg) - 1)) / fn,
+                          (int)(e0 + (i >> lg)) - 1023);
+        double ds = ldexp(1.0 / fn, (int)(e0 + (i >> lg)) - 1023);
         for (q = 1; q < 8; q++) {
-            double x = x0 + dx * ((double)i + q / 8.0), h = -exp(x);
+            double h = -(s0 + ds * (q / 8.0));
             double th, kk, cc, dk, e;
             psik_state st;
             if (!inside(t, h))
