@@ -54,13 +54,43 @@ static void two_sum(double a, double b, double *s, double *e)
     *e = (a - (t - bb)) + (b - bb);
 }
 
+/* Q(zh + zl) in long double where that type has at least 64 bits (x87):
+ * erfcl at x = z/sqrt 2 with the rounding of x corrected to first order
+ * (fmal remainder), so Q carries ~11 bits beyond a double and Se, Kr
+ * round once at the end. Elsewhere, and past z = 37, psik__normq. */
+#if LDBL_MANT_DIG >= 64
+#  define KOS_LD 1
+static long double q_ld(double zh, double zl)
+{
+    const long double rs = 0.707106781186547524400844362104849039L;   /* 1/sqrt 2 */
+    const long double rsqpi = 0.564189583547756286948079451560772586L;  /* 1/sqrt pi */
+    long double z = (long double)zh + zl, x, xc;
+    if (!(zh <= 37.0))
+        return psik__normq(zh, zl);
+    x = z * rs;
+    xc = fmal(z, rs, -x);
+    return 0.5L * erfcl(x) - rsqpi * expl(-x * x) * xc;
+}
+#else
+#  define KOS_LD 0
+static long double q_ld(double zh, double zl)
+{
+    return psik__normq(zh, zl);
+}
+#endif
+
+static double kos_q(double zh, double zl)
+{
+    return (double)q_ld(zh, zl);
+}
+
 /* Hazard phi/Q at v = vh + vl. */
 static double hazard(double vh, double vl)
 {
     double q;
     if (vh >= 5.0)
         return 1.0 / psik__mills(vh, vl);
-    q = psik__normq(vh, vl);
+    q = kos_q(vh, vl);
     return q > 0.0 ? psik__normpdf(vh, vl) / q : 0.0;
 }
 
@@ -146,22 +176,28 @@ static double phi_times(double th, double tl, double f)
 }
 
 /* Everything at z = zh + zl, suction s, with se = Q(z) already known. */
-static void kos_core(const double *a, double zh, double zl, double s, double se,
+static void kos_core(const double *a, double zh, double zl, double s, long double se_l,
                      psik_point *out)
 {
-    const double sig = a[A_SIG];
+    const double sig = a[A_SIG], se = (double)se_l;
     double wh, wl, kr;
     two_sum(zh, sig, &wh, &wl);
     wl += zl;
     out->se = se;
     out->dse = psik__normpdf(zh, zl) / sig / s;
     if (zh <= 0.0 || (wh <= Z_FAR && zh <= Z_FAR)) {
-        double qw = psik__normq(wh, wl);
-        if (a[A_L] >= 0.0 || se > 1e-150) {
-            kr = (pow(se, a[A_L]) * qw) * qw;   /* one rounding fewer than squaring */
+        if (KOS_LD) {
+            /* Se^L Q(w)^2 in long double (no overflow of Se^L there) */
+            long double q = q_ld(wh, wl);
+            kr = (double)(powl(se_l, (long double)a[A_L]) * q * q);
         } else {
-            double r = pow(se, a[A_HL]) * qw;
-            kr = r * r;
+            double qw = psik__normq(wh, wl);
+            if (a[A_L] >= 0.0 || se > 1e-150) {
+                kr = (pow(se, a[A_L]) * qw) * qw;   /* one rounding fewer than squaring */
+            } else {
+                double r = pow(se, a[A_HL]) * qw;
+                kr = r * r;
+            }
         }
     } else {
         /* E = c ln Q(z) - (z sigma + sigma^2/2) + ln(M(w)/M(z)), c = L/2+1 */
@@ -238,7 +274,7 @@ static void kos_point(const psik_model *m, double s, psik_point *out)
         return;
     }
     z_of_s(m->aux, s, &zh, &zl);
-    kos_core(m->aux, zh, zl, s, psik__normq(zh, zl), out);
+    kos_core(m->aux, zh, zl, s, q_ld(zh, zl), out);
 }
 
 static double kos_se(const psik_model *m, double s)
@@ -247,7 +283,7 @@ static double kos_se(const psik_model *m, double s)
     if (isinf(s))
         return 0.0;
     z_of_s(m->aux, s, &zh, &zl);
-    return psik__normq(zh, zl);
+    return kos_q(zh, zl);
 }
 
 static double kos_kr(const psik_model *m, double s)
