@@ -150,6 +150,7 @@ int main(void)
 {
     static const char *kinds[] = {
         "vgm", "vgm_ae", "vg_free_m", "vgb",
+        "bcm", "bcb", "kosugi", "durner2", "durner3", "gardner",
     };
     struct CMUnitTest tests[sizeof kinds / sizeof kinds[0]];
     size_t i;
