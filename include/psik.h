@@ -505,14 +505,16 @@ PSIK_API psik_status psik_fit_rank(const psik_fit_result *fits, size_t count,
 
 /**
  * @name Tabulated fast path
- * A table holds ln Se(h) and ln K(h) of one model as monotone piecewise
- * cubics in ln(-h) (cubic Hermite with the model's exact slopes at the
- * knots, limited by Fritsch & Carlson 1980 so that every piece is
- * monotone), built once into memory the caller provides. The capacity and
- * dK/dh it returns are the exact derivatives of those interpolants, so a
- * scheme that integrates C stays consistent with theta. Evaluation costs
- * one log, two exps and two cubics; heads outside the table's range, NaN
- * and saturated heads give psik_eval()'s values. A table is plain data
+ * A table holds ln Se and ln K of one model as monotone piecewise cubics
+ * over suction (cubic Hermite with the model's exact slopes at the knots,
+ * limited by Fritsch & Carlson 1980 so that every piece is monotone), on
+ * knots 2^e (1 + i/N), N = 2^k per octave of suction, built once into
+ * memory the caller provides. The capacity and dK/dh it returns are the
+ * exact derivatives of those interpolants, so a scheme that integrates C
+ * stays consistent with theta. An evaluation finds its interval from the
+ * bits of h and costs two cubics and two exps; heads outside the table's
+ * range, NaN and saturated heads give psik_eval()'s values. A table is
+ * plain data
  * (no pointers; it may be copied to another buffer of the same alignment
  * modulo 64 and read by many threads at once).
  *
@@ -522,9 +524,10 @@ PSIK_API psik_status psik_fit_rank(const psik_fit_result *fits, size_t count,
  * you need the model's full accuracy.
  */
 /**@{*/
-/** Default knot density of a table, in knots per decade of suction: with
- *  it the tests measure theta within 1e-9 and K within 1e-7 (relative) for
- *  van Genuchten-Mualem soils with n up to 3 (tests/unit/test_table.c). */
+/** Default knot density of a table, in knots per decade of suction (128
+ *  knots per octave): with it the tests measure theta within 1e-10 and K
+ *  within 1e-9 (relative) for van Genuchten-Mualem soils with n up to 2.7
+ *  and one model of every other kind (tests/unit/test_table.c). */
 #define PSIK_TABLE_DENSITY 400.0
 
 /** An interpolation table (opaque; lives in caller-provided memory). */
@@ -538,8 +541,10 @@ typedef struct psik_table_error {
 
 /**
  * Number of knots for a table over [@p h_dry, @p h_wet] (both negative,
- * h_dry < h_wet) at @p density knots per decade of suction (0 or less: the
- * default PSIK_TABLE_DENSITY). 0 when the range is invalid or too large.
+ * h_dry < h_wet) at @p density knots per decade of suction or more (0 or
+ * less: the default PSIK_TABLE_DENSITY): the octaves of suction the range
+ * touches times the power of two at or above density log10(2), plus one.
+ * 0 when the range is invalid or too large.
  */
 PSIK_API size_t psik_table_knots(double h_dry, double h_wet, double density);
 
@@ -549,7 +554,9 @@ PSIK_API size_t psik_table_bytes(size_t knots);
 
 /**
  * Build a table of model @p m over heads [@p h_dry, @p h_wet] with @p knots
- * uniform knots in ln(-h), in @p mem (@p bytes >= psik_table_bytes(knots)).
+ * knots, in @p mem (@p bytes >= psik_table_bytes(knots)). @p knots must be
+ * what psik_table_knots() gives for the same range (it fixes the knots per
+ * octave, a power of two).
  * A range reaching into the saturated heads is cut at the saturation head.
  * Method and cost: psik_eval() at every knot and at 7 points inside every
  * interval, where the interpolants are compared with the model: the largest
@@ -565,7 +572,8 @@ PSIK_API size_t psik_table_bytes(size_t knots);
  * @param bytes  size of @p mem
  * @param table  out: the table, inside @p mem (NULL on failure)
  * @param err    out (may be NULL): the error bounds
- * @return PSIK_OK; PSIK_EINVAL (NULL pointer, invalid model, knots < 2);
+ * @return PSIK_OK; PSIK_EINVAL (NULL pointer, invalid model, knots not
+ *         from psik_table_knots() for this range);
  *         PSIK_EDOMAIN (not h_dry < h_wet < 0, or infinite h_dry);
  *         PSIK_ENOMEM (@p bytes too small).
  */

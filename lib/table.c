@@ -1,24 +1,29 @@
 /* table.c - the tabulated fast path (psik_table_*): ln Se and ln K of any
- * model as monotone piecewise cubics in x = ln(suction).
+ * model as monotone piecewise cubics over suction s = -h.
  *
- * Build: knots x_j = ln(-h_wet) + j dx, uniform, up to ln(-h_dry). At each
- * knot psik_eval gives Se, K and their exact slopes in x
- * (d ln Se/dx = -s C / ((theta_s - theta_r) Se), d ln K/dx = -s (dK/dh) / K).
- * ln Se rather than theta: theta = theta_r + (theta_s - theta_r) e^(ln Se)
- * then keeps its relative accuracy, and C keeps its own where theta is
- * within rounding of theta_s or theta_r (C far below theta's last digit). Cubic Hermite pieces
- * with exact slopes are O(dx^4); the Fritsch-Carlson (1980) limiter then
- * scales the two slopes of any interval where alpha^2 + beta^2 > 9
- * (alpha, beta = slope / secant) and zeroes them where the secant is 0,
- * which makes every piece monotone, so C >= 0 and dK/dh >= 0 everywhere.
- * Each interval stores its eight cubic coefficients (ln Se, ln K), in
- * t = (x - x_j)/dx, so an evaluation is one log, two exps and two cubics.
+ * Knots: every octave [2^e, 2^(e+1)) of suction from the one holding -h_wet
+ * to the one holding -h_dry is cut into N = 2^k equal intervals, knots
+ * s = 2^e (1 + i/N) (relative spacing 1/N to 1/(2N), like a log grid of
+ * N / log10(2) knots per decade). An evaluation then finds its interval and
+ * its position f in [0, 1) from the bits of s alone (exponent and top k
+ * significand bits; the rest is f exactly): no log, no division.
+ * At each knot psik_eval gives Se, K and their exact slopes in x = ln s
+ * (d ln Se/dx = -s C / ((theta_s - theta_r) Se), d ln K/dx = -s (dK/dh) / K),
+ * turned into slopes per unit f (dx/df = 1/(N + i + f)). ln Se rather than
+ * theta: theta = theta_r + (theta_s - theta_r) e^(ln Se) then keeps its
+ * relative accuracy, and C keeps its own where theta is within rounding of
+ * theta_s or theta_r. Cubic Hermite pieces with exact slopes are
+ * O(N^-4); the Fritsch-Carlson (1980) limiter then scales an interval's two
+ * slopes where alpha^2 + beta^2 > 9 (alpha, beta = slope / secant) and
+ * zeroes them where the secant is 0, which makes every piece monotone, so
+ * C >= 0 and dK/dh >= 0 everywhere. Each interval stores its eight cubic
+ * coefficients (ln Se, ln K) in f: an evaluation is two cubics and two exps.
  * C and dK/dh are the exact derivatives of the interpolants (a
  * mass-conservative scheme that integrates C stays consistent with
  * theta), not the model's own.
  *
  * Error report: the interpolants are compared with psik_eval at 7 points
- * inside every interval (t = 1/8 ... 7/8); the largest relative errors,
+ * inside every interval (f = 1/8 ... 7/8); the largest relative errors,
  * times 1.5 for the peaks between samples, are the reported bounds.
  * tests/unit/test_table.c checks them with 64 random points per interval.
  * K below 1e-280 ks is left out of the K bound (ln K and ln Se are clamped
@@ -51,7 +56,7 @@ struct psik_table {
     double tr, dts, ts, ks;
     double err_theta, err_k;
     psik_model model;
-    double coef[1];               /* 8 (knots - 1) coefficients */
+    double coef[];                /* 8 (knots - 1) coefficients */
 };
 
 static size_t header_bytes(void)
