@@ -208,6 +208,7 @@ const psik_family psik__fam_bcm = {
     .kr = bc_kr,
     .point_se = bc_point_se,
     .suction = bc_suction,
+    .batch = NULL,              /* psik_eval_batch loops over psik_eval */
 };
 
 const psik_family psik__fam_bcb = {
@@ -224,4 +225,5 @@ const psik_family psik__fam_bcb = {
     .kr = bc_kr,
     .point_se = bc_point_se,
     .suction = bc_suction,
+    .batch = NULL,              /* psik_eval_batch loops over psik_eval */
 };

@@ -466,6 +466,7 @@ const psik_family psik__fam_durner2 = {
     .kr = dur_kr,
     .point_se = NULL,
     .suction = dur_suction,
+    .batch = NULL,              /* psik_eval_batch loops over psik_eval */
 };
 
 const psik_family psik__fam_durner3 = {
@@ -483,4 +484,5 @@ const psik_family psik__fam_durner3 = {
     .kr = dur_kr,
     .point_se = NULL,
     .suction = dur_suction,
+    .batch = NULL,              /* psik_eval_batch loops over psik_eval */
 };

@@ -80,4 +80,5 @@ const psik_family psik__fam_gardner = {
     .kr = g_se,
     .point_se = g_point_se,
     .suction = g_suction,
+    .batch = NULL,              /* psik_eval_batch loops over psik_eval */
 };

@@ -372,4 +372,5 @@ const psik_family psik__fam_kosugi = {
     .kr = kos_kr,
     .point_se = kos_point_se,
     .suction = kos_suction,
+    .batch = NULL,              /* psik_eval_batch loops over psik_eval */
 };
