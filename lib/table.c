@@ -24,7 +24,7 @@
  *
  * Error report: the interpolants are compared with psik_eval at 7 points
  * inside every interval (f = 1/8 ... 7/8); the largest relative errors,
- * times 1.5 for the peaks between samples, are the reported bounds.
+ * times 1.25 for the peaks between samples, are the reported bounds.
  * tests/unit/test_table.c checks them with 64 random points per interval.
  * K below 1e-280 ks is left out of the K bound (ln K and ln Se are clamped
  * at ln(1e-300) so that an underflowed value does not poison its
@@ -56,12 +56,26 @@ struct psik_table {
     double tr, dts, ts, ks;
     double err_theta, err_k;
     psik_model model;
-    double coef[];                /* 8 (knots - 1) coefficients */
+    /* then, at header_bytes() from the start, 8 (knots - 1) coefficients */
 };
+
+static size_t header_bytes(void);
+static double *coef_of(struct psik_table *t);
+static const double *ccoef_of(const struct psik_table *t);
 
 static size_t header_bytes(void)
 {
-    return offsetof(struct psik_table, coef);
+    return (sizeof(struct psik_table) + TABLE_ALIGN - 1) / TABLE_ALIGN * TABLE_ALIGN;
+}
+
+static double *coef_of(struct psik_table *t)
+{
+    return (double *)(void *)((unsigned char *)t + header_bytes());
+}
+
+static const double *ccoef_of(const struct psik_table *t)
+{
+    return (const double *)(const void *)((const unsigned char *)t + header_bytes());
 }
 
 /* Biased exponent of s > 0 normal. */
@@ -164,7 +178,7 @@ typedef struct tb_par {
 static tb_par tb_par_of(const struct psik_table *t)
 {
     tb_par p;
-    p.coef = t->coef;
+    p.coef = ccoef_of(t);
     p.e0 = t->e0;
     p.lg = t->lg;
     p.nint = t->nint;
@@ -277,19 +291,20 @@ PSIK_API psik_status psik_table_build(const psik_model *m, double h_dry, double 
      * coefficients, which overwrite the row once its knot has been read. */
     {
         double last[4];
+        double *co = coef_of(t);
         const size_t mask = ((size_t)1 << lg) - 1;
         for (i = 0; i < knots; i++) {
-            double *slot = i + 1 < knots ? t->coef + 8 * i : last;
+            double *slot = i + 1 < knots ? co + 8 * i : last;
             /* s = 2^e (1 + i'/N): octave e = e0 + i / N, i' = i mod N */
             double s = ldexp(1.0 + (double)(i & mask) / fn, (int)(e0 + (i >> lg)) - 1023);
             if (s <= -m->h_sat)   /* left limit at the saturation head */
                 s = -m->h_sat * (1.0 + 4.0 * DBL_EPSILON);
             knot(m, s, &slot[0], &slot[1], &slot[2], &slot[3]);
         }
-        th0 = t->coef[0]; dth0 = t->coef[1]; lk0 = t->coef[2]; dlk0 = t->coef[3];
+        th0 = co[0]; dth0 = co[1]; lk0 = co[2]; dlk0 = co[3];
         for (i = 0; i + 1 < knots; i++) {
-            double *c = t->coef + 8 * i;
-            const double *b = i + 2 < knots ? t->coef + 8 * (i + 1) : last;
+            double *c = co + 8 * i;
+            const double *b = i + 2 < knots ? co + 8 * (i + 1) : last;
             double th1 = b[0], dth1 = b[1], lk1 = b[2], dlk1 = b[3];
             double w0 = 1.0 / (fn + (double)(i & mask)), w1 = 1.0 / (fn + (double)(i & mask) + 1.0);
             double a0 = dth0 * w0, a1 = dth1 * w1, k0 = dlk0 * w0, k1 = dlk1 * w1;
@@ -325,8 +340,8 @@ PSIK_API psik_status psik_table_build(const psik_model *m, double h_dry, double 
             }
         }
     }
-    t->err_theta = 1.5 * eth;
-    t->err_k = 1.5 * ek;
+    t->err_theta = 1.25 * eth;
+    t->err_k = 1.25 * ek;
     if (err != NULL) {
         err->theta_rel = t->err_theta;
         err->k_rel = t->err_k;
