@@ -250,7 +250,9 @@ PSIK_API double psik_dk_dh(const psik_model *m, double h);
  *  models whose capacity vanishes at saturation); 0 for theta <= theta_r. */
 PSIK_API double psik_diffusivity(const psik_model *m, double theta);
 /** All of Se, theta, Kr, K, C and dK/dh at once, sharing the expensive
- *  terms; the same values as the single functions. NULL @p out is ignored. */
+ *  terms. Kr, K, C and dK/dh equal the single functions bit for bit; Se and
+ *  theta agree with psik_se() and psik_theta() within 4 ulp (those take a
+ *  cheaper path of their own). NULL @p out is ignored. */
 PSIK_API void psik_eval(const psik_model *m, double h, psik_state *out);
 /**
  * psik_eval over @p count heads. Any output pointer may be NULL: that output

@@ -140,42 +140,6 @@ PSIK_FM int vg_core(const psik_vgc *c, double s, int half, int model,
     return (p >= DBL_MIN) & (p <= DBL_MAX) & (th >= -700.0) & (th <= 700.0);
 }
 
-/* Se alone with exactly the operations of vg_core, so that psik_se and
- * psik_theta give the bits psik_eval gives (the contract in psik.h). */
-PSIK_HIDDEN int psik__vg_se_fast(const psik_vgc *c, double s, double *se)
-{
-    const double n = c->n, m = c->m, k = c->k;
-    double p = c->alpha * s;
-    double lph, lpl, th, tl, a, b, bl, kh, kl, mb, mbl, e1h, e1l, t1, t2, S;
-    int wet;
-    lph = psik__fm_log_dd(p, &lpl);
-    psik__fm_mul_dd(n, lph, lpl, &th, &tl);
-    if (!((p >= DBL_MIN) & (p <= DBL_MAX) & (th >= -700.0) & (th <= 700.0)))
-        return 0;
-    wet = th <= 0.0;
-    t1 = -th;
-    t2 = -tl;
-    a = psik__fm_exp_dd(psik__fm_sel(wet, th, t1), psik__fm_sel(wet, tl, t2));
-    b = psik__fm_log1p_dd(a, &bl);
-    /* k lp = n lp - (n - k) lp, with n - k = 1 or 2 exactly */
-    psik__fm_two_sum(th, -(n - k) * lph, &kh, &kl);
-    kl = kl + (tl - (n - k) * lpl);
-    psik__fm_mul_dd(m, b, bl, &mb, &mbl);
-    t1 = -kh;
-    psik__fm_two_sum(psik__fm_sel(wet, 0.0, t1), -mb, &e1h, &t1);
-    t2 = -kl;
-    e1l = (t1 - mbl) + psik__fm_sel(wet, 0.0, t2);
-    S = psik__fm_exp_dd(e1h, e1l);
-    if (c->model == PSIK_VGC_MUALEM_AE) {   /* as in vg_core */
-        double xe = c->xe;
-        double sw = psik__fm_exp(-m * psik__fm_log1p_fin((a - xe) / (1.0 + xe)));
-        double sq = S / c->sc;
-        S = psik__fm_sel(wet & (xe <= 1.0), sw, sq);
-    }
-    *se = S;
-    return 1;
-}
-
 PSIK_HIDDEN int psik__vg_point_fast(const psik_vgc *c, double s, psik_point *out)
 {
     double se, kr, dse, dkr;

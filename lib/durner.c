@@ -50,13 +50,19 @@
 
 #define MAX_ITER 200
 
-/* The sums over the modes and what is combined from them are carried in
- * long double (where that type is wider than double, e.g. the x87 80-bit
- * format): the per-mode terms are double, but their weighting, summing,
- * the division by Se and G and the powers of Se add no rounding of their
- * own before the one at the end. Where long double is double this is the
- * plain double computation. */
+/* The per-mode terms and the sums over the modes are carried in acc_t:
+ * double by default; with -DPSIK_EXTENDED (and where long double is wider
+ * than double, e.g. the x87 80-bit format) long double, so that weighting,
+ * summing and the powers of Se add no rounding of their own before the one
+ * at the end (2 ulp instead of up to 6 in dK/dh, at about 20 times the
+ * cost: the long double transcendentals are slow). */
+#if defined(PSIK_EXTENDED) && LDBL_MANT_DIG >= 64
 typedef long double acc_t;
+#  define AF(f) f##l
+#else
+typedef double acc_t;
+#  define AF(f) f
+#endif
 
 typedef struct dur_sum {
     acc_t se;     /* sum w S */
@@ -75,40 +81,40 @@ typedef struct dur_sum {
 static void mode_add(const double *a, int i, double s, dur_sum *acc)
 {
     const acc_t alpha = a[A_ALPHA(i)], n = a[A_N(i)], w = a[A_W(i)], c = a[A_C(i)];
-    const acc_t mm = (n - 1.0L) / n;
-    const acc_t k = n - 1.0L;     /* exact for n >= 1 */
+    const acc_t mm = (n - 1.0) / n;
+    const acc_t k = n - 1.0;     /* exact for n >= 1 */
     acc_t p = alpha * s, S, cS, g, dls, dg, ym, ky, kr_;
-    if (p <= 1.0L) {
-        acc_t x = powl(p, n), r = 1.0L / (1.0L + x), y = x * r, l1 = log1pl(x);
-        S = expl(-mm * l1);
-        cS = -expm1l(-mm * l1);
-        ym = powl(p, k) * S;                   /* y^m = p^(m n) Se */
-        g = ym < 0.5L ? 1.0L - ym : -expm1l(mm * logl(y));
-        dls = k * alpha * powl(p, n - 1.0L) * r;
-        dg = k * alpha * powl(p, k - 1.0L) * expl(-(mm + 1.0L) * l1);   /* S r in one */
+    if (p <= 1.0) {
+        acc_t x = AF(pow)(p, n), r = 1.0 / (1.0 + x), y = x * r, l1 = AF(log1p)(x);
+        S = AF(exp)(-mm * l1);
+        cS = -AF(expm1)(-mm * l1);
+        ym = AF(pow)(p, k) * S;                   /* y^m = p^(m n) Se */
+        g = ym < 0.5 ? 1.0 - ym : -AF(expm1)(mm * AF(log)(y));
+        dls = k * alpha * AF(pow)(p, n - 1.0) * r;
+        dg = k * alpha * AF(pow)(p, k - 1.0) * AF(exp)(-(mm + 1.0) * l1);   /* S r in one */
         ky = k * y;
         kr_ = k * ym * r;
     } else if (p < (acc_t)INFINITY) {
-        acc_t u = powl(p, -n), b = log1pl(u), y = 1.0L / (1.0L + u);
-        ym = expl(-mm * b);
-        S = powl(p, -k) * ym;
-        cS = S > 0.25L ? -expm1l(-mm * (n * logl(p) + b)) : 1.0L - S;
-        g = -expm1l(-mm * b);
+        acc_t u = AF(pow)(p, -n), b = AF(log1p)(u), y = 1.0 / (1.0 + u);
+        ym = AF(exp)(-mm * b);
+        S = AF(pow)(p, -k) * ym;
+        cS = S > 0.25 ? -AF(expm1)(-mm * (n * AF(log)(p) + b)) : 1.0 - S;
+        g = -AF(expm1)(-mm * b);
         dls = k * alpha * y / p;
-        dg = k * alpha * (u * expl(-(mm + 1.0L) * b)) / p;           /* ym u y in one */
+        dg = k * alpha * (u * AF(exp)(-(mm + 1.0) * b)) / p;           /* ym u y in one */
         ky = k * y;
         kr_ = k * ym * (u * y);
     } else {
         /* alpha s beyond the range (only where long double is double) */
-        acc_t lp = logl(alpha) + logl((acc_t)s);
-        ym = 1.0L;
-        S = expl(-k * lp);
-        cS = 1.0L;
-        g = mm * expl(-n * lp);
+        acc_t lp = AF(log)(alpha) + AF(log)((acc_t)s);
+        ym = 1.0;
+        S = AF(exp)(-k * lp);
+        cS = 1.0;
+        g = mm * AF(exp)(-n * lp);
         dls = k / s;
-        dg = 0.0L;
+        dg = 0.0;
         ky = k;
-        kr_ = 0.0L;
+        kr_ = 0.0;
     }
     {
         /* the last weight carries its rounding remainder */
@@ -129,7 +135,7 @@ static void mode_add(const double *a, int i, double s, dur_sum *acc)
  * to 1 exactly, the last one in two parts), the plain sum elsewhere. */
 static acc_t se_of(const dur_sum *q)
 {
-    return q->cse < 0.5L ? 1.0L - q->cse : q->se;
+    return q->cse < 0.5 ? 1.0 - q->cse : q->se;
 }
 
 static void dur_sums(const double *a, double s, dur_sum *acc)
@@ -157,30 +163,30 @@ static void dur_point(const psik_model *m, double s, psik_point *out)
     /* the scaled sums for s >= 1, where w S dS/dh may underflow term by
      * term; the direct ones for s < 1, where 1/s may overflow */
     out->dse = (double)(s >= 1.0 ? q.sdse / s : q.dse);
-    if (!(q.se > 0.0L) || !(q.g > 0.0L)) {
+    if (!(q.se > 0.0) || !(q.g > 0.0)) {
         out->kr = out->dkr = 0.0;
         return;
     }
-    if (q.cse < 0.5L && q.cg < 0.5L) {
+    if (q.cse < 0.5 && q.cg < 0.5) {
         /* near saturation: from the complements, which keep the digits
          * that Se and G ~ 1 have lost */
-        kr = expl(L * log1pl(-q.cse) + 2.0L * log1pl(-q.cg));
-    } else if (L >= 0.0L || q.se > 1e-150L) {
+        kr = AF(exp)(L * AF(log1p)(-q.cse) + 2.0 * AF(log1p)(-q.cg));
+    } else if (L >= 0.0 || q.se > 1e-150L) {
         /* (Se^L G) G: for L < 0 the first product lifts G before the
          * second, so G^2 does not underflow on its own */
-        kr = (powl(q.se, L) * q.g) * q.g;
+        kr = (AF(pow)(q.se, L) * q.g) * q.g;
     } else {
         /* Se^L could overflow: the square root of Kr stays in range */
-        acc_t r = powl(q.se, 0.5L * L) * q.g;
+        acc_t r = AF(pow)(q.se, 0.5 * L) * q.g;
         kr = r * r;
     }
     out->kr = (double)kr;
     if (!(out->kr > 0.0))
         out->dkr = 0.0;
     else if (s >= 1.0)
-        out->dkr = (double)(kr * ((L * (q.sdse / q.se) + 2.0L * (q.sdg / q.g)) / s));
+        out->dkr = (double)(kr * ((L * (q.sdse / q.se) + 2.0 * (q.sdg / q.g)) / s));
     else
-        out->dkr = (double)(kr * (L * (q.dse / q.se) + 2.0L * (q.dg / q.g)));
+        out->dkr = (double)(kr * (L * (q.dse / q.se) + 2.0 * (q.dg / q.g)));
 }
 
 /* Se alone: the same sums as dur_point, so psik_se and psik_eval agree
@@ -226,12 +232,12 @@ static double dur_residual(const double *a, double s, double target, double *dF)
     dur_sum q;
     dur_sums(a, s, &q);
     q.se = se_of(&q);
-    if (!(q.se > 0.0L)) {
+    if (!(q.se > 0.0)) {
         *dF = 0.0;
         return -INFINITY;
     }
     *dF = (double)(-(q.sdse / q.se));
-    return (double)log1pl((q.se - target) / target);
+    return (double)AF(log1p)((q.se - target) / target);
 }
 
 static double dur_suction(const psik_model *m, double se)
@@ -383,13 +389,13 @@ static void finish_prepare(psik_model *m, int nm, double L)
      * rounded once (long double sum at init: no error in the sum itself
      * reaches G beyond the rounding of c_i) */
     double *a = m->aux;
-    long double sum = 0.0L;
+    acc_t sum = 0.0;
     int i;
     for (i = 0; i < nm; i++)
-        sum += (long double)a[A_W(i)] * a[A_ALPHA(i)];
-    sum += (long double)a[A_WLO] * a[A_ALPHA(nm - 1)];
+        sum += (acc_t)a[A_W(i)] * a[A_ALPHA(i)];
+    sum += (acc_t)a[A_WLO] * a[A_ALPHA(nm - 1)];
     for (i = 0; i < nm; i++) {
-        long double w = a[A_W(i)];
+        acc_t w = a[A_W(i)];
         if (i == nm - 1)
             w += a[A_WLO];
         a[A_C(i)] = (double)(w * a[A_ALPHA(i)] / sum);

@@ -23,9 +23,6 @@ enum { PSIK_VGC_MUALEM = 1, PSIK_VGC_BURDINE, PSIK_VGC_MUALEM_AE };
  * (tests/unit/test_accuracy.c) and equal the batch kernel's bit for bit. */
 PSIK_HIDDEN int psik__vg_point_fast(const psik_vgc *c, double s, psik_point *out);
 
-/* Se alone, the same bits as psik__vg_point_fast's (0 as above). */
-PSIK_HIDDEN int psik__vg_se_fast(const psik_vgc *c, double s, double *se);
-
 /* psik_eval_batch for a van Genuchten row (see psik_family.batch). */
 PSIK_HIDDEN void psik__vg_batch(const psik_model *m, const psik_vgc *c, size_t count,
                                 const double *h, double *theta, double *k,

@@ -54,11 +54,13 @@ static void two_sum(double a, double b, double *s, double *e)
     *e = (a - (t - bb)) + (b - bb);
 }
 
-/* Q(zh + zl) in long double where that type has at least 64 bits (x87):
+/* Q(zh + zl) in long double when built with -DPSIK_EXTENDED where that
+ * type has at least 64 bits (x87; about 20 times slower, 1 ulp instead of
+ * up to 4 in K):
  * erfcl at x = z/sqrt 2 with the rounding of x corrected to first order
  * (fmal remainder), so Q carries ~11 bits beyond a double and Se, Kr
  * round once at the end. Elsewhere, and past z = 37, psik__normq. */
-#if LDBL_MANT_DIG >= 64
+#if defined(PSIK_EXTENDED) && LDBL_MANT_DIG >= 64
 #  define KOS_LD 1
 static long double q_ld(double zh, double zl)
 {

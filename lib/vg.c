@@ -344,13 +344,12 @@ static double vg_se(const psik_model *m, double s)
     }
 }
 
-/* Se through the fused core (the same bits as psik_eval's Se). */
+/* Se alone (psik_se, psik_theta): vg_se's two or three libm calls are
+ * about three times cheaper than the fused core, which computes Kr and the
+ * derivatives too; both meet the accuracy goal and agree within a few ulp
+ * (tests/unit/test_sweeps.c), psik_eval's Se being the fused core's. */
 static double vgm_se(const psik_model *m, double s)
 {
-    double se;
-    psik_vgc c = vg_coef(m, PSIK_VGC_MUALEM);
-    if (psik__vg_se_fast(&c, s, &se))
-        return se;
     return vg_se(m, s);
 }
 
@@ -454,15 +453,14 @@ static void vgm_ae_point_se(const psik_model *m, double se, psik_point *out)
     vgm_ae_fill(m->aux, &q, se, out);
 }
 
+/* Se alone: vgm_ae_se_of's forms without the derivatives. */
 static double vgm_ae_se(const psik_model *m, double s)
 {
-    vg_pt q;
-    double se;
-    psik_vgc c = vg_coef(m, PSIK_VGC_MUALEM_AE);
-    if (psik__vg_se_fast(&c, s, &se))
-        return se;
-    vg_from_s(m->aux, s, &q);
-    return vgm_ae_se_of(m->aux, &q);
+    const double *a = m->aux;
+    double p = a[A_ALPHA] * s;
+    if (p <= 1.0 && a[A_XE] <= 1.0)
+        return exp(-a[A_M] * log1p((pow(p, a[A_N]) - a[A_XE]) / (1.0 + a[A_XE])));
+    return vg_se(m, s) / a[A_SC];
 }
 
 static void vgm_ae_batch(const psik_model *m, size_t count, const double *h,
@@ -655,11 +653,7 @@ static void vgb_point_se(const psik_model *m, double se, psik_point *out)
 /* Se through the fused core (the same bits as psik_eval's Se). */
 static double vgb_se(const psik_model *m, double s)
 {
-    double se;
-    psik_vgc c = vg_coef(m, PSIK_VGC_BURDINE);
-    if (psik__vg_se_fast(&c, s, &se))
-        return se;
-    return vg_se(m, s);
+    return vg_se(m, s);   /* as vgm_se */
 }
 
 static void vgb_batch(const psik_model *m, size_t count, const double *h,

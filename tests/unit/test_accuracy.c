@@ -31,6 +31,16 @@ static const struct { const char *kind, *fn; double limit; const char *why; } kn
     {"vgm_ae", "eval(all)", 8.0, "as kr"},
     {"vgm_ae", "batch(all)", 8.0, "as kr"},
     {"vgm_ae", "diffusivity", 8.0, "K/C from Se near h_e, both few-ulp values"},
+    {"durner2", "kr", 8.0, "a weighted sum of two modes, each a few ulp, rounded in double "
+                           "(a -DPSIK_EXTENDED build sums in long double: 2 ulp, ~20x slower)"},
+    {"durner2", "dk_dh", 8.0, "as kr"},
+    {"durner2", "eval(all)", 8.0, "as kr"},
+    {"durner2", "batch(all)", 8.0, "as kr"},
+    {"durner3", "kr", 8.0, "as durner2, three modes"},
+    {"durner3", "k", 8.0, "as kr"},
+    {"durner3", "dk_dh", 8.0, "as kr"},
+    {"durner3", "eval(all)", 8.0, "as kr"},
+    {"durner3", "batch(all)", 8.0, "as kr"},
     {"vg_free_m", "kr", 128.0, "n near 1 (b = 1 - 1/n << 1): I_z(a,b) is small although z is "
                                "past the split point, so it is 1 minus the continued fraction "
                                "of the complement (relative error ~ (1-I)/I ulp)"},

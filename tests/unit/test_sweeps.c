@@ -64,9 +64,11 @@ static void sweep_model(const psik_model *m, const char *label, double *worst_rt
         assert_true(st.k >= 0.0 && st.k <= m->ks);
         assert_true(st.capacity >= 0.0);
         assert_true(st.dk_dh >= 0.0);
-        /* single functions agree with the fused one */
-        assert_true(psik_se(m, h[i]) == st.se);
-        assert_true(psik_theta(m, h[i]) == st.theta);
+        /* single functions agree with the fused one: Se and theta come from
+         * a cheaper path of their own (within 4 ulp), the rest bit for bit */
+        if (!(rc_ulps(psik_se(m, h[i]), st.se) <= 4.0 && rc_ulps(psik_theta(m, h[i]), st.theta) <= 4.0))
+            fail_msg("%s: psik_se %.17g vs psik_eval %.17g at h = %g", label,
+                     psik_se(m, h[i]), st.se, h[i]);
         assert_true(psik_kr(m, h[i]) == st.kr);
         assert_true(psik_capacity(m, h[i]) == st.capacity);
         assert_true(psik_dk_dh(m, h[i]) == st.dk_dh);
