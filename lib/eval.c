@@ -142,6 +142,19 @@ PSIK_API void psik_eval(const psik_model *m, double h, psik_state *out)
     out->dk_dh = clamp_pos(m->ks * p.dkr);
 }
 
+/* NaN into every output given (batch calls without usable input). */
+PSIK_HIDDEN void psik__fill_nan(size_t count, double *theta, double *k, double *capacity,
+                                double *dk_dh)
+{
+    size_t i;
+    for (i = 0; i < count; i++) {
+        if (theta) theta[i] = NAN;
+        if (k) k[i] = NAN;
+        if (capacity) capacity[i] = NAN;
+        if (dk_dh) dk_dh[i] = NAN;
+    }
+}
+
 PSIK_API void psik_eval_batch(const psik_model *m, size_t count, const double *h,
                               double *theta, double *k, double *capacity, double *dk_dh)
 {
@@ -153,12 +166,7 @@ PSIK_API void psik_eval_batch(const psik_model *m, size_t count, const double *h
         return;
     }
     if (h == NULL) {
-        for (i = 0; i < count; i++) {
-            if (theta) theta[i] = NAN;
-            if (k) k[i] = NAN;
-            if (capacity) capacity[i] = NAN;
-            if (dk_dh) dk_dh[i] = NAN;
-        }
+        psik__fill_nan(count, theta, k, capacity, dk_dh);
         return;
     }
     for (i = 0; i < count; i++) {

@@ -79,6 +79,10 @@ PSIK_HIDDEN psik_status psik__fail(char *msg, size_t cap, psik_status st,
 #endif
     ;
 
+/* NaN into every non-NULL output of a batch call (eval.c). */
+PSIK_HIDDEN void psik__fill_nan(size_t count, double *theta, double *k, double *capacity,
+                                double *dk_dh);
+
 /* Special functions (special.c). */
 /* Regularized incomplete beta I_x(a,b) with y = 1 - x given separately (so
  * either end keeps its digits) and front = x^a y^b / B(a,b) computed by the

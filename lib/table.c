@@ -415,13 +415,7 @@ PSIK_API void psik_table_eval_batch(const psik_table *t, size_t count, const dou
     size_t i0;
     tb_par tp;
     if (!valid(t) || h == NULL) {
-        size_t i;
-        for (i = 0; i < count; i++) {
-            if (theta) theta[i] = NAN;
-            if (k) k[i] = NAN;
-            if (capacity) capacity[i] = NAN;
-            if (dk_dh) dk_dh[i] = NAN;
-        }
+        psik__fill_nan(count, theta, k, capacity, dk_dh);
         return;
     }
     tp = tb_par_of(t);

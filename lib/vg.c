@@ -225,13 +225,13 @@ static void set_common(const double *par, double *a, double n, double mm)
 
 /* ------------------------------------------------------------------ vgm */
 
+/* Plausible ranges (heads in cm) shared by the rows below. */
+#define VG_P_THETA {"theta_r", 0.0, 0.5}, {"theta_s", 0.05, 1.0}, {"alpha", 1e-5, 100.0}
+#define VG_P_KS    {"ks", 1e-6, 1e5}
+#define VG_P_L     {"l", -5.0, 10.0}
+
 static const psik_param_info vgm_param[] = {
-    {"theta_r", 0.0, 0.5},
-    {"theta_s", 0.05, 1.0},
-    {"alpha", 1e-5, 100.0},
-    {"n", 1.001, 20.0},
-    {"ks", 1e-6, 1e5},
-    {"l", -5.0, 10.0},
+    VG_P_THETA, {"n", 1.001, 20.0}, VG_P_KS, VG_P_L,
 };
 
 static psik_status check_alpha_n(const double *par, double nmin, const char *why,
@@ -387,13 +387,7 @@ const psik_family psik__fam_vgm = {
 /* ---------------------------------------------------------------- vgm_ae */
 
 static const psik_param_info vgm_ae_param[] = {
-    {"theta_r", 0.0, 0.5},
-    {"theta_s", 0.05, 1.0},
-    {"alpha", 1e-5, 100.0},
-    {"n", 1.001, 20.0},
-    {"ks", 1e-6, 1e5},
-    {"l", -5.0, 10.0},
-    {"h_e", -100.0, 0.0},
+    VG_P_THETA, {"n", 1.001, 20.0}, VG_P_KS, VG_P_L, {"h_e", -100.0, 0.0},
 };
 
 static psik_status vgm_ae_check(const double *par, char *msg, size_t cap)
@@ -504,13 +498,7 @@ const psik_family psik__fam_vgm_ae = {
 /* ------------------------------------------------------------- vg_free_m */
 
 static const psik_param_info vg_free_m_param[] = {
-    {"theta_r", 0.0, 0.5},
-    {"theta_s", 0.05, 1.0},
-    {"alpha", 1e-5, 100.0},
-    {"n", 1.001, 20.0},
-    {"m", 0.01, 10.0},
-    {"ks", 1e-6, 1e5},
-    {"l", -5.0, 10.0},
+    VG_P_THETA, {"n", 1.001, 20.0}, {"m", 0.01, 10.0}, VG_P_KS, VG_P_L,
 };
 
 /* l > -(2 + 2/(m n)) keeps dKr/dh >= 0 (and Kr -> 0 when dry): d ln I_z(a,b)/d ln z >= a because
@@ -600,11 +588,7 @@ const psik_family psik__fam_vg_free_m = {
 /* ------------------------------------------------------------------- vgb */
 
 static const psik_param_info vgb_param[] = {
-    {"theta_r", 0.0, 0.5},
-    {"theta_s", 0.05, 1.0},
-    {"alpha", 1e-5, 100.0},
-    {"n", 2.001, 20.0},
-    {"ks", 1e-6, 1e5},
+    VG_P_THETA, {"n", 2.001, 20.0}, VG_P_KS,
 };
 
 static psik_status vgb_check(const double *par, char *msg, size_t cap)

@@ -453,6 +453,33 @@ typedef struct fit_one {
     char msg[256];
 } fit_one;
 
+/* Chart series for a plot: the measured points (n of them at suctions dx,
+ * values dv) and the curve f(model, h) of each of the best nplot fits over
+ * the suctions xs. Returns the number of series written into ser. */
+static int plot_series(const fit_one *fits, const int *map, const size_t *order, int nok,
+                       int nplot, const double *dx, const double *dv, size_t n,
+                       const double *xs, int npts, double *ys, char (*labels)[96],
+                       svg_series *ser, double (*f)(const psik_model *, double))
+{
+    int m, s, ns = 1;
+    ser[0].label = "measured";
+    ser[0].n = n; ser[0].x = dx; ser[0].y = dv; ser[0].markers = 1;
+    for (m = 0; m < nok && m < nplot; m++) {
+        const fit_one *fo = &fits[map[order[m]]];
+        psik_model mod;
+        double *y = ys + (size_t)m * (size_t)npts;
+        if (psik_init(&mod, fo->kind, fo->r.par) != PSIK_OK)
+            continue;
+        for (s = 0; s < npts; s++)
+            y[s] = f(&mod, -xs[s]);
+        snprintf(labels[ns], 96, "%s (AICc %.1f)", psik_kind_name(fo->kind), fo->r.aicc);
+        ser[ns].label = labels[ns];
+        ser[ns].n = (size_t)npts; ser[ns].x = xs; ser[ns].y = y; ser[ns].dashed = m > 0 && m % 2 == 1;
+        ns++;
+    }
+    return ns;
+}
+
 static const char *flag_word(int fl)
 {
     if (fl & PSIK_FIT_AUTOFIXED) return "held: not determined by the data";
@@ -877,22 +904,8 @@ static int cmd_fit(int argc, char **argv)
             /* retention: theta against suction */
             for (q = 0; q < ret.n; q++)
                 dx[q] = ret.h[q] < 0.0 ? -ret.h[q] : smin;   /* saturated rows at the left edge */
-            ser[0].label = "measured";
-            ser[0].n = ret.n; ser[0].x = dx; ser[0].y = ret.v; ser[0].markers = 1;
-            ns = 1;
-            for (m = 0; m < nok && m < nplot; m++) {
-                const fit_one *fo = &fits[map[order[m]]];
-                psik_model mod;
-                double *y = ys + (size_t)m * (size_t)npts;
-                if (psik_init(&mod, fo->kind, fo->r.par) != PSIK_OK)
-                    continue;
-                for (s = 0; s < npts; s++)
-                    y[s] = psik_theta(&mod, -xs[s]);
-                snprintf(labels[ns], 96, "%s (AICc %.1f)", psik_kind_name(fo->kind), fo->r.aicc);
-                ser[ns].label = labels[ns];
-                ser[ns].n = (size_t)npts; ser[ns].x = xs; ser[ns].y = y; ser[ns].dashed = m > 0 && m % 2 == 1;
-                ns++;
-            }
+            ns = plot_series(fits, map, order, nok, nplot, dx, ret.v, ret.n, xs, npts, ys,
+                             labels, ser, psik_theta);
             {
                 char xl[96], yl[96];
                 svg_chart ch;
@@ -914,22 +927,8 @@ static int cmd_fit(int argc, char **argv)
             if (con.n > 0) {
                 for (q = 0; q < con.n; q++)
                     dx[q] = con.h[q] < 0.0 ? -con.h[q] : smin;
-                ser[0].label = "measured";
-                ser[0].n = con.n; ser[0].x = dx; ser[0].y = con.v; ser[0].markers = 1;
-                ns = 1;
-                for (m = 0; m < nok && m < nplot; m++) {
-                    const fit_one *fo = &fits[map[order[m]]];
-                    psik_model mod;
-                    double *y = ys + (size_t)m * (size_t)npts;
-                    if (psik_init(&mod, fo->kind, fo->r.par) != PSIK_OK)
-                        continue;
-                    for (s = 0; s < npts; s++)
-                        y[s] = psik_k(&mod, -xs[s]);
-                    snprintf(labels[ns], 96, "%s (AICc %.1f)", psik_kind_name(fo->kind), fo->r.aicc);
-                    ser[ns].label = labels[ns];
-                    ser[ns].n = (size_t)npts; ser[ns].x = xs; ser[ns].y = y; ser[ns].dashed = m > 0 && m % 2 == 1;
-                    ns++;
-                }
+                ns = plot_series(fits, map, order, nok, nplot, dx, con.v, con.n, xs, npts, ys,
+                                 labels, ser, psik_k);
                 {
                     char xl[96], yl[96];
                     svg_chart ch;
