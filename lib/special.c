@@ -115,6 +115,29 @@ static double beta_by_fractions(double a, double b)
     return front * (beta_cf(a, b, x0, 2000, &ok) / a + beta_cf(b, a, y0, 2000, &ok) / b);
 }
 
+/* sum_k (1-b)_k x^k / (k! (a+k)), so that B_x(a,b) = x^a times it: for
+ * b < 1 every term is positive, so the sum keeps its relative accuracy
+ * (compensated; the term recurrence adds ~sqrt(k) ulp to late, small
+ * terms). Used past the split point where I is small (b << 1), x <= 0.97:
+ * at most ~1300 terms. */
+static double beta_series(double a, double b, double x)
+{
+    double t = 1.0, sum = 1.0 / a, c = 0.0;
+    int k;
+    for (k = 0; k < 4000; k++) {
+        double term, y2, s2;
+        t *= ((double)k + 1.0 - b) / ((double)k + 1.0) * x;
+        term = t / (a + (double)k + 1.0);
+        y2 = term - c;
+        s2 = sum + y2;
+        c = (s2 - sum) - y2;
+        sum = s2;
+        if (term < 0.25 * DBL_EPSILON * sum)
+            break;
+    }
+    return sum;
+}
+
 /* Regularized incomplete beta I_x(a,b), a, b > 0, 0 <= x <= 1, y = 1 - x
  * (given separately so the caller keeps the digits of whichever is small),
  * front = x^a y^b / B(a,b).
@@ -144,6 +167,8 @@ PSIK_HIDDEN double psik__ibeta(double a, double b, double x, double y,
     }
     v = front * beta_cf(b, a, y, 500, &ok) / b;     /* 1 - I */
     *comp = v;
+    if (v > 0.25 && b < 1.0 && x <= 0.97)
+        return front * beta_series(a, b, x) / pow(y, b);
     return 1.0 - v;
 }
 

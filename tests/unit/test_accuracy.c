@@ -41,15 +41,14 @@ static const struct { const char *kind, *fn; double limit; const char *why; } kn
     {"durner3", "dk_dh", 8.0, "as kr"},
     {"durner3", "eval(all)", 8.0, "as kr"},
     {"durner3", "batch(all)", 8.0, "as kr"},
-    {"vg_free_m", "kr", 128.0, "n near 1 (b = 1 - 1/n << 1): I_z(a,b) is small although z is "
-                               "past the split point, so it is 1 minus the continued fraction "
-                               "of the complement (relative error ~ (1-I)/I ulp)"},
-    {"vg_free_m", "k", 128.0, "as kr"},
-    {"vg_free_m", "dk_dh", 64.0, "as kr"},
-    {"vg_free_m", "eval(all)", 128.0, "as kr"},
-    {"vg_free_m", "batch(all)", 128.0, "as kr"},
-    {"vg_free_m", "k_theta", 16.0, "as kr"},
-    {"vg_free_m", "diffusivity", 16.0, "as kr"},
+    {"vg_free_m", "kr", 48.0, "n near 1 (b = 1 - 1/n << 1) very near saturation: I_z(a,b) is "
+                              "small although z > 0.97, past the split point and beyond the "
+                              "positive series' reach, so it is 1 minus the continued fraction "
+                              "of the complement (relative error ~ (1-I)/I ulp)"},
+    {"vg_free_m", "k", 48.0, "as kr"},
+    {"vg_free_m", "dk_dh", 24.0, "as kr"},
+    {"vg_free_m", "eval(all)", 48.0, "as kr"},
+    {"vg_free_m", "batch(all)", 48.0, "as kr"},
 };
 
 static double limit_for(const char *kind, const char *fn, const char **why)
