@@ -183,6 +183,20 @@ static void jstr(FILE *f, const char *s)
     fputc('"', f);
 }
 
+/* A JSON object mapping the parameter names of kind to n values. */
+static void jparams(FILE *f, psik_kind kind, int n, const double *v)
+{
+    int j;
+    fputc('{', f);
+    for (j = 0; j < n; j++) {
+        fprintf(f, "%s", j ? ", " : "");
+        jstr(f, psik_param_name(kind, j));
+        fprintf(f, ": ");
+        jnum(f, v[j]);
+    }
+    fputc('}', f);
+}
+
 /* ------------------------------------------------------------ models and parameters */
 
 static psik_kind kind_arg(const char *name)
@@ -549,21 +563,11 @@ static void print_fit_json_one(FILE *f, const fit_one *fo, int rank, double weig
     jstr(f, psik_kind_name(fo->kind));
     fprintf(f, ", \"rank\": %d, \"akaike_weight\": ", rank);
     jnum(f, weight);
-    fprintf(f, ", \"parameters\": {");
-    for (j = 0; j < np; j++) {
-        fprintf(f, "%s", j ? ", " : "");
-        jstr(f, psik_param_name(fo->kind, j));
-        fprintf(f, ": ");
-        jnum(f, r->par[j]);
-    }
-    fprintf(f, "}, \"std_err\": {");
-    for (j = 0; j < np; j++) {
-        fprintf(f, "%s", j ? ", " : "");
-        jstr(f, psik_param_name(fo->kind, j));
-        fprintf(f, ": ");
-        jnum(f, r->std_err[j]);
-    }
-    fprintf(f, "}, \"confidence_interval\": {");
+    fprintf(f, ", \"parameters\": ");
+    jparams(f, fo->kind, np, r->par);
+    fprintf(f, ", \"std_err\": ");
+    jparams(f, fo->kind, np, r->std_err);
+    fprintf(f, ", \"confidence_interval\": {");
     for (j = 0; j < np; j++) {
         fprintf(f, "%s", j ? ", " : "");
         jstr(f, psik_param_name(fo->kind, j));
@@ -823,14 +827,9 @@ static int cmd_fit(int argc, char **argv)
             if (u.k[0]) jstr(stdout, u.k); else printf("null");
             printf("}, \"model\": ");
             jstr(stdout, psik_kind_name(b->kind));
-            printf(", \"parameters\": {");
-            for (j = 0; j < b->r.npar; j++) {
-                printf("%s", j ? ", " : "");
-                jstr(stdout, psik_param_name(b->kind, j));
-                printf(": ");
-                jnum(stdout, b->r.par[j]);
-            }
-            printf("}, \"sse\": ");
+            printf(", \"parameters\": ");
+            jparams(stdout, b->kind, b->r.npar, b->r.par);
+            printf(", \"sse\": ");
             jnum(stdout, b->r.sse);
             printf(", \"aicc\": ");
             jnum(stdout, b->r.aicc);
@@ -1058,17 +1057,11 @@ static int cmd_table(int argc, char **argv)
         }
     }
     if (json) {
-        int j;
         printf("{\"tool\": \"psik\", \"command\": \"table\", \"model\": ");
         jstr(stdout, psik_kind_name(kind));
-        printf(", \"parameters\": {");
-        for (j = 0; j < psik_param_count(kind); j++) {
-            printf("%s", j ? ", " : "");
-            jstr(stdout, psik_param_name(kind, j));
-            printf(": ");
-            jnum(stdout, par[j]);
-        }
-        printf("}, \"columns\": [\"h\", \"theta\", \"se\", \"k\", \"kr\", \"capacity\", \"dk_dh\"], \"rows\": [");
+        printf(", \"parameters\": ");
+        jparams(stdout, kind, psik_param_count(kind), par);
+        printf(", \"columns\": [\"h\", \"theta\", \"se\", \"k\", \"kr\", \"capacity\", \"dk_dh\"], \"rows\": [");
         for (i = 0; i < rg.points; i++) {
             psik_state s;
             psik_eval(&m, hh[i], &s);
@@ -1175,14 +1168,9 @@ static int cmd_compare(int argc, char **argv)
         jstr(stdout, file);
         printf(", \"model\": ");
         jstr(stdout, psik_kind_name(kind));
-        printf(", \"parameters\": {");
-        for (i = 0; i < psik_param_count(kind); i++) {
-            printf("%s", i ? ", " : "");
-            jstr(stdout, psik_param_name(kind, i));
-            printf(": ");
-            jnum(stdout, par[i]);
-        }
-        printf("}, \"rows\": %lu, \"columns\": {", (unsigned long)t.nrow);
+        printf(", \"parameters\": ");
+        jparams(stdout, kind, psik_param_count(kind), par);
+        printf(", \"rows\": %lu, \"columns\": {", (unsigned long)t.nrow);
     } else {
         printf("psik compare: %s against %s (%lu rows)\n", file, psik_kind_name(kind),
                (unsigned long)t.nrow);
