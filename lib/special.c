@@ -49,12 +49,11 @@ static double beta_d(double a, double b, double x, int j)
  * a margin), where rounding errors are damped instead of accumulated:
  * a few ulp even when hundreds of terms are needed. Converges quickly for
  * x < (a+1)/(a+b+2), slowly but surely for x < 1. */
-static double beta_cf(double a, double b, double x, int maxit, int *converged)
+static double beta_cf(double a, double b, double x, int maxit)
 {
     const double tiny = 1e-300;
     double c = 1.0, d = 0.0, t;   /* Lentz: C0 = b0 = 1, D0 = 0 */
     int j, depth = 2 * maxit;
-    *converged = 0;
     for (j = 1; j <= 2 * maxit; j++) {
         double aa = beta_d(a, b, x, j), del;
         d = 1.0 + aa * d;
@@ -65,7 +64,6 @@ static double beta_cf(double a, double b, double x, int maxit, int *converged)
         del = d * c;
         if (fabs(del - 1.0) < 0.25 * DBL_EPSILON) {
             depth = j;
-            *converged = 1;
             break;
         }
     }
@@ -103,16 +101,13 @@ static double beta_by_fractions(double a, double b)
 {
     double x0 = (a + 1.0) / (a + b + 2.0), y0;
     double front;
-    int ok;
-    /* x0 + y0 = 1 exactly: the larger one is rounded, the smaller exact */
-    if (x0 >= 0.5) {
-        y0 = 1.0 - x0;
-    } else {
-        y0 = 1.0 - x0;
+    /* x0 + y0 = 1 exactly: the larger one is rounded, the smaller exact
+     * (1 - y0 is exact for y0 >= 1/2) */
+    y0 = 1.0 - x0;
+    if (x0 < 0.5)
         x0 = 1.0 - y0;
-    }
     front = pow(x0, a) * pow(y0, b);
-    return front * (beta_cf(a, b, x0, 2000, &ok) / a + beta_cf(b, a, y0, 2000, &ok) / b);
+    return front * (beta_cf(a, b, x0, 2000) / a + beta_cf(b, a, y0, 2000) / b);
 }
 
 /* sum_k (1-b)_k x^k / (k! (a+k)), so that B_x(a,b) = x^a times it: for
@@ -151,7 +146,6 @@ PSIK_HIDDEN double psik__ibeta(double a, double b, double x, double y,
                                double front, double *comp)
 {
     double v;
-    int ok;
     if (x <= 0.0) {
         *comp = 1.0;
         return 0.0;
@@ -161,11 +155,11 @@ PSIK_HIDDEN double psik__ibeta(double a, double b, double x, double y,
         return 1.0;
     }
     if (x < (a + 1.0) / (a + b + 2.0)) {
-        v = front * beta_cf(a, b, x, 500, &ok) / a;
+        v = front * beta_cf(a, b, x, 500) / a;
         *comp = 1.0 - v;
         return v;
     }
-    v = front * beta_cf(b, a, y, 500, &ok) / b;     /* 1 - I */
+    v = front * beta_cf(b, a, y, 500) / b;     /* 1 - I */
     *comp = v;
     if (v > 0.25 && b < 1.0 && x <= 0.97)
         return front * beta_series(a, b, x) / pow(y, b);

@@ -327,7 +327,10 @@ static void vgm_point_se(const psik_model *m, double se, psik_point *out)
     vgm_fill(m->aux, &q, out);
 }
 
-/* Se alone: the first half of vg_from_s. */
+/* Se alone (psik_se, psik_theta): the first half of vg_from_s, two or
+ * three libm calls, about three times cheaper than the fused core that
+ * psik_eval uses (which computes Kr and the derivatives too); both meet the
+ * accuracy goal and agree within a few ulp (tests/unit/test_sweeps.c). */
 static double vg_se(const psik_model *m, double s)
 {
     const double *a = m->aux;
@@ -342,15 +345,6 @@ static double vg_se(const psik_model *m, double s)
         vg_from_s(a, s, &q);
         return q.se;
     }
-}
-
-/* Se alone (psik_se, psik_theta): vg_se's two or three libm calls are
- * about three times cheaper than the fused core, which computes Kr and the
- * derivatives too; both meet the accuracy goal and agree within a few ulp
- * (tests/unit/test_sweeps.c), psik_eval's Se being the fused core's. */
-static double vgm_se(const psik_model *m, double s)
-{
-    return vg_se(m, s);
 }
 
 static double vgm_kr(const psik_model *m, double s)
@@ -377,7 +371,7 @@ const psik_family psik__fam_vgm = {
     .check = vgm_check,
     .prepare = vgm_prepare,
     .point = vgm_point,
-    .se = vgm_se,
+    .se = vg_se,
     .kr = vgm_kr,
     .point_se = vgm_point_se,
     .suction = vg_suction,
@@ -423,10 +417,17 @@ static void vgm_ae_fill(const double *a, const vg_pt *q, double se, psik_point *
     mualem_out(se, a[A_L], q->g / ge, q->dls, q->dg / ge, out);
 }
 
+/* Se on the wet branch with x <= 1 at h_e too: exp(-m log1p((x - xe)/(1 + xe))),
+ * which keeps the digits of 1 - Se that S / Sc would lose. */
+static double vgm_ae_se_wet(const double *a, double x)
+{
+    return exp(-a[A_M] * log1p((x - a[A_XE]) / (1.0 + a[A_XE])));
+}
+
 static double vgm_ae_se_of(const double *a, const vg_pt *q)
 {
     if (q->wet && a[A_XE] <= 1.0)
-        return exp(-a[A_M] * log1p((q->x - a[A_XE]) / (1.0 + a[A_XE])));
+        return vgm_ae_se_wet(a, q->x);
     return q->se / a[A_SC];
 }
 
@@ -453,7 +454,7 @@ static double vgm_ae_se(const psik_model *m, double s)
     const double *a = m->aux;
     double p = a[A_ALPHA] * s;
     if (p <= 1.0 && a[A_XE] <= 1.0)
-        return exp(-a[A_M] * log1p((pow(p, a[A_N]) - a[A_XE]) / (1.0 + a[A_XE])));
+        return vgm_ae_se_wet(a, pow(p, a[A_N]));
     return vg_se(m, s) / a[A_SC];
 }
 
@@ -634,12 +635,6 @@ static void vgb_point_se(const psik_model *m, double se, psik_point *out)
     vgb_fill(&q, out);
 }
 
-/* Se through the fused core (the same bits as psik_eval's Se). */
-static double vgb_se(const psik_model *m, double s)
-{
-    return vg_se(m, s);   /* as vgm_se */
-}
-
 static void vgb_batch(const psik_model *m, size_t count, const double *h,
                       double *theta, double *k, double *capacity, double *dk_dh)
 {
@@ -664,7 +659,7 @@ const psik_family psik__fam_vgb = {
     .check = vgb_check,
     .prepare = vgb_prepare,
     .point = vgb_point,
-    .se = vgb_se,
+    .se = vg_se,
     .kr = vgb_kr,
     .point_se = vgb_point_se,
     .suction = vg_suction,
