@@ -21,28 +21,21 @@
  * flagged and recomputed afterwards by psik_eval, so they get exactly the
  * scalar path's values. The clamps are eval.c's, as selects.
  *
- * Instruction sets: the block loop is compiled three times on x86-64
- * (baseline, SSE4.2, AVX2) and chosen per call with __builtin_cpu_supports,
- * which also checks that the OS saves the wide registers; other targets
- * and compilers get the baseline loop. The baseline x86-64 loop stays
- * scalar (GCC needs SSE4.2's 64-bit compares for the selects' masks); the
- * SSE4.2 loop works on 2 lanes and the AVX2 loop on 4. (AVX-512 gave no
- * gain over AVX2 here: GCC keeps 256-bit vectors for it.) No fused
- * multiply-adds are formed (-ffp-contract=off, pragma for clang), so the
- * three give identical bits, equal to psik_eval's.
+ * Instruction sets (isa.h): this file is compiled once per variant
+ * (portable, SSE4.2, AVX2 with FMA, AVX-512 with FMA and 512-bit vectors)
+ * and psik__isa() picks one per call, for the batch loop and for the
+ * single point psik_eval uses (the widest scalar variant there). Fused
+ * multiply-adds appear only where fastmath.h asks for an exact product
+ * (two_prod), which gives the same bits as the portable split; no
+ * contraction elsewhere (-ffp-contract=off, pragma for clang), so every
+ * variant gives identical bits, equal to psik_eval's.
  */
 #include "fast_vg.h"
 #include "fastmath.h"
+#include "isa.h"
 
 #include <float.h>
 #include <math.h>
-
-#if defined(__x86_64__) && defined(__GNUC__) && !defined(PSIK_NO_DISPATCH) && \
-    !defined(PSIK_SINGLE)
-#  define PSIK_VG_DISPATCH 1
-#else
-#  define PSIK_VG_DISPATCH 0
-#endif
 
 #define BLK 256
 
@@ -140,7 +133,7 @@ PSIK_FM int vg_core(const psik_vgc *c, double s, int half, int model,
     return (p >= DBL_MIN) & (p <= DBL_MAX) & (th >= -700.0) & (th <= 700.0);
 }
 
-PSIK_HIDDEN int psik__vg_point_fast(const psik_vgc *c, double s, psik_point *out)
+PSIK_HIDDEN int PSIK_ISA_FN(psik__vg_point)(const psik_vgc *c, double s, psik_point *out)
 {
     double se, kr, dse, dkr;
     int ok;
@@ -225,21 +218,43 @@ typedef void (*vg_block_fn)(VG_BLOCK_ARGS);
         return c->l == 0.5 ? vgm_half_##suffix : vgm_any_##suffix;                    \
     }
 
-VG_VARIANTS(base, )
-#if PSIK_VG_DISPATCH
-VG_VARIANTS(sse42, __attribute__((target("sse4.2"))))
-VG_VARIANTS(avx2, __attribute__((target("avx2"))))
+#define VG_VARIANTS_OF(suffix) VG_VARIANTS(suffix, )
+VG_VARIANTS_OF(PSIK_ISA_NAME)
+
+PSIK_HIDDEN vg_block_fn PSIK_ISA_FN(psik__vg_pick)(const psik_vgc *c);
+PSIK_HIDDEN vg_block_fn PSIK_ISA_FN(psik__vg_pick)(const psik_vgc *c)
+{
+    return PSIK_ISA_FN(pick)(c);
+}
+
+#if PSIK_ISA_BASE
+#if PSIK_ISA_HAVE
+PSIK_HIDDEN vg_block_fn psik__vg_pick_sse42(const psik_vgc *c);
+PSIK_HIDDEN vg_block_fn psik__vg_pick_avx2(const psik_vgc *c);
+PSIK_HIDDEN vg_block_fn psik__vg_pick_avx512(const psik_vgc *c);
+PSIK_HIDDEN int psik__vg_point_avx2(const psik_vgc *c, double s, psik_point *out);
 #endif
 
 static vg_block_fn pick(const psik_vgc *c)
 {
-#if PSIK_VG_DISPATCH
-    if (__builtin_cpu_supports("avx2"))
-        return pick_avx2(c);
-    if (__builtin_cpu_supports("sse4.2"))
-        return pick_sse42(c);
+#if PSIK_ISA_HAVE
+    switch (psik__isa()) {
+    case PSIK_ISA_ID_AVX512: return psik__vg_pick_avx512(c);
+    case PSIK_ISA_ID_AVX2: return psik__vg_pick_avx2(c);
+    case PSIK_ISA_ID_SSE42: return psik__vg_pick_sse42(c);
+    default: break;
+    }
 #endif
-    return pick_base(c);
+    return psik__vg_pick_base(c);
+}
+
+PSIK_HIDDEN int psik__vg_point_fast(const psik_vgc *c, double s, psik_point *out)
+{
+#if PSIK_ISA_HAVE
+    if (psik__isa() >= PSIK_ISA_ID_AVX2)
+        return psik__vg_point_avx2(c, s, out);
+#endif
+    return psik__vg_point_base(c, s, out);
 }
 
 PSIK_HIDDEN void psik__vg_batch(const psik_model *m, const psik_vgc *c, size_t count,
@@ -287,3 +302,4 @@ PSIK_HIDDEN void psik__vg_batch(const psik_model *m, const psik_vgc *c, size_t c
         }
     }
 }
+#endif /* PSIK_ISA_BASE */

@@ -73,9 +73,16 @@ PSIK_FM void psik__fm_two_sum(double a, double b, double *s, double *e)
     *e = (a - (t - bb)) + (b - bb);
 }
 
-/* p + e = a * b exactly (Dekker, Veltkamp split; |a|, |b| < 2^995). */
+/* p + e = a * b exactly (Dekker, Veltkamp split; |a|, |b| < 2^995; one
+ * fused multiply-add where the instruction set has it, same bits). */
 PSIK_FM void psik__fm_two_prod(double a, double b, double *p, double *e)
 {
+#if defined(__FMA__)
+    /* the same exact pair in two instructions */
+    double pp = a * b;
+    *p = pp;
+    *e = __builtin_fma(a, b, -pp);
+#else
     const double split = 134217729.0;   /* 2^27 + 1 */
     double ca = split * a, cb = split * b;
     double ah = ca - (ca - a), al = a - ah;
@@ -83,6 +90,7 @@ PSIK_FM void psik__fm_two_prod(double a, double b, double *p, double *e)
     double pp = a * b;
     *p = pp;
     *e = ((ah * bh - pp) + ah * bl + al * bh) + al * bl;
+#endif
 }
 
 /* c * (xh + xl) as a double-double (c, xh moderate). */
@@ -215,12 +223,7 @@ PSIK_FM double psik__fm_log_dd(double x, double *lo)
     double lch = psik__fm_log_tab[3 * j + 1], lcl = psik__fm_log_tab[3 * j + 2];
     double rh = d * invc, ph, pl, rl, r2, P, H, e1, H2, e2, l, hi;
     /* rh c exactly (c has 8 bits: only rh needs splitting) */
-    {
-        const double split = 134217729.0;
-        double cr = split * rh, rhh = cr - (cr - rh), rhl = rh - rhh;
-        ph = rh * c;
-        pl = (rhh * c - ph) + rhl * c;
-    }
+    psik__fm_two_prod(rh, c, &ph, &pl);
     rl = ((d - ph) - pl) * invc;
     r2 = rh * rh;
     P = (1.0 / 3.0 - rh * 0.25) + r2 * ((0.2 - rh * (1.0 / 6.0)) + r2 * (1.0 / 7.0));

@@ -1,0 +1,31 @@
+/* isa.c - which compiled variant of the batch kernels to use (isa.h). */
+#include "isa.h"
+
+static int isa_cap = PSIK_ISA_ID_AVX512;
+
+static int isa_best(void)
+{
+#if PSIK_ISA_HAVE
+    if (__builtin_cpu_supports("avx512f") && __builtin_cpu_supports("avx512dq") &&
+        __builtin_cpu_supports("avx512vl") && __builtin_cpu_supports("fma"))
+        return PSIK_ISA_ID_AVX512;
+    if (__builtin_cpu_supports("avx2") && __builtin_cpu_supports("fma"))
+        return PSIK_ISA_ID_AVX2;
+    if (__builtin_cpu_supports("sse4.2"))
+        return PSIK_ISA_ID_SSE42;
+#endif
+    return PSIK_ISA_ID_BASE;
+}
+
+PSIK_HIDDEN int psik__isa(void)
+{
+    int b = isa_best();
+    return b < isa_cap ? b : isa_cap;
+}
+
+PSIK_HIDDEN int psik__isa_limit(int id)
+{
+    int old = isa_cap;
+    isa_cap = id;
+    return old;
+}
