@@ -549,11 +549,47 @@ static void vg_free_m_fill(const double *a, const vg_pt *q, psik_point *out)
     mualem_out(q->se, a[A_L], I, q->dls, dI, out);
 }
 
+/* The fused point and batch kernel (lib/batch_vgfm.c), with the model's
+ * constants in this order: alpha, n, m, k = m n as hi and lo, l, a, b,
+ * B(a, b). */
+PSIK_HIDDEN int psik__vgfm_point_fast(const double *cst, double s, psik_point *out);
+PSIK_HIDDEN void psik__vgfm_batch(const psik_model *m, const double *cst, size_t count,
+                                  const double *h, double *theta, double *k,
+                                  double *capacity, double *dk_dh);
+
+static void vg_free_m_consts(const psik_model *m, double *cst)
+{
+    const double *a = m->aux;
+    cst[0] = a[A_ALPHA];
+    cst[1] = a[A_N];
+    cst[2] = a[A_M];
+    cst[3] = a[A_K];
+    cst[4] = a[A_K_LO];
+    cst[5] = a[A_L];
+    cst[6] = a[A_FA];
+    cst[7] = a[A_FB];
+    cst[8] = a[A_BAB];
+}
+
+/* The fused point where it applies (realistic heads), else vg_from_s and
+ * psik__ibeta; psik_eval_batch takes the same two paths per head. */
 static void vg_free_m_point(const psik_model *m, double s, psik_point *out)
 {
     vg_pt q;
+    double cst[9];
+    vg_free_m_consts(m, cst);
+    if (psik__vgfm_point_fast(cst, s, out))
+        return;
     vg_from_s(m->aux, s, &q);
     vg_free_m_fill(m->aux, &q, out);
+}
+
+static void vg_free_m_batch(const psik_model *m, size_t count, const double *h,
+                            double *theta, double *k, double *capacity, double *dk_dh)
+{
+    double cst[9];
+    vg_free_m_consts(m, cst);
+    psik__vgfm_batch(m, cst, count, h, theta, k, capacity, dk_dh);
 }
 
 static void vg_free_m_point_se(const psik_model *m, double se, psik_point *out)
@@ -584,6 +620,7 @@ const psik_family psik__fam_vg_free_m = {
     .kr = vg_free_m_kr,
     .point_se = vg_free_m_point_se,
     .suction = vg_suction,
+    .batch = vg_free_m_batch,
 };
 
 /* ------------------------------------------------------------------- vgb */
