@@ -56,7 +56,7 @@ enum { VGFM_ALPHA, VGFM_N, VGFM_M, VGFM_KH, VGFM_KL, VGFM_L, VGFM_A, VGFM_B, VGF
 
 /* What a call precomputes from them. */
 typedef struct vgfm_k {
-    double alpha, n, m, kh, kl, l, ka, na, ibab, split, ia, ib;
+    double alpha, n, m, kh, kl, l, ka, na, ibab, split, a, b, ia, ib;
     double pc1, pc2;                  /* prod |c_j|, j = 1..J, per side */
     double c1[VGFM_J], c2[VGFM_J];    /* c_(j+1): side (a, b) and side (b, a) */
 } vgfm_k;
@@ -71,7 +71,8 @@ static double vgfm_c(double p, double q, int j)
     return (i * (q - i)) / ((p + 2.0 * i - 1.0) * (p + 2.0 * i));
 }
 
-static void vgfm_setup(const double *cst, vgfm_k *K)
+/* The constants; the tables (batch calls) only if tables != 0. */
+static void vgfm_setup(const double *cst, vgfm_k *K, int tables)
 {
     const double a = cst[VGFM_A], b = cst[VGFM_B];
     int j;
@@ -85,11 +86,13 @@ static void vgfm_setup(const double *cst, vgfm_k *K)
     K->na = cst[VGFM_N] * cst[VGFM_ALPHA];
     K->ibab = 1.0 / cst[VGFM_BAB];
     K->split = (a + 1.0) / (a + b + 2.0);
+    K->a = a;
+    K->b = b;
     K->ia = 1.0 / a;
     K->ib = 1.0 / b;
     K->pc1 = 1.0;
     K->pc2 = 1.0;
-    for (j = 0; j < VGFM_J; j++) {
+    for (j = 0; j < VGFM_J && tables; j++) {
         K->c1[j] = vgfm_c(a, b, j + 1);
         K->c2[j] = vgfm_c(b, a, j + 1);
         K->pc1 *= fabs(K->c1[j]);
@@ -117,17 +120,18 @@ PSIK_FM double vgfm_01(double v)
 #  define VGFM_UNROLL
 #endif
 
-/* The fused point at suction s. half: l == 1/2. Returns 1 when the lane
- * is the core's (see the top of the file); the values are garbage
- * otherwise. */
-PSIK_FM int vgfm_core(const vgfm_k *K, double s, int half,
+/* The fused point at suction s. half: l == 1/2. tab: c_j from K's tables
+ * (batch), else computed here for the lane's side only (single point; the
+ * same expressions, so the same bits). Returns 1 when the lane is the
+ * core's (see the top of the file); the values are garbage otherwise. */
+PSIK_FM int vgfm_core(const vgfm_k *K, double s, int half, int tab,
                       double *se_o, double *kr_o, double *dse_o, double *dkr_o)
 {
     const double n = K->n, m = K->m;
     double p = K->alpha * s;
     double lph, lpl, th, tl, A, bh, bl, kph, kpl, mb, mbl, e1h, e1l, t1, t2;
     double S, inv, y, r, invp, dls, front, w, f, I, v, dI, seL, kr, dkr;
-    double P1 = 1.0, P2 = 1.0, Q1 = 1.0, Q2 = 0.0, W, pc;
+    double P1 = 1.0, P2 = 1.0, Q1 = 1.0, Q2 = 0.0, W, pc, pa, pb, pcs = 1.0;
     int wet, side1, ok, pos, j;
     lph = psik__fm_log_dd(p, &lpl);
     psik__fm_mul_dd(n, lph, lpl, &th, &tl);
@@ -155,10 +159,20 @@ PSIK_FM int vgfm_core(const vgfm_k *K, double s, int half,
     /* the fraction on the lane's side */
     side1 = r < K->split;
     w = psik__fm_sel(side1, r, y);
+    pa = psik__fm_sel(side1, K->a, K->b);
+    pb = psik__fm_sel(side1, K->b, K->a);
     VGFM_UNROLL
     for (j = 0; j < VGFM_J; j++) {
-        double d = psik__fm_sel(side1, K->c1[j], K->c2[j]) * w;
-        double P = P1 + d * P2, Q = Q1 + d * Q2;
+        double c, d, P, Q;
+        if (tab) {
+            c = psik__fm_sel(side1, K->c1[j], K->c2[j]);
+        } else {
+            c = vgfm_c(pa, pb, j + 1);
+            pcs *= fabs(c);
+        }
+        d = c * w;
+        P = P1 + d * P2;
+        Q = Q1 + d * Q2;
         P2 = P1;
         P1 = P;
         Q2 = Q1;
@@ -170,7 +184,7 @@ PSIK_FM int vgfm_core(const vgfm_k *K, double s, int half,
     W = W * W;
     W = W * W;
     W = W * W;                              /* w^32 */
-    pc = psik__fm_sel(side1, K->pc1, K->pc2);
+    pc = tab ? psik__fm_sel(side1, K->pc1, K->pc2) : pcs;
     ok = W * pc <= 0x1p-58 * (Q1 * P2);
     t1 = front * f;
     I = t1 * K->ia;
@@ -205,11 +219,11 @@ PSIK_HIDDEN int PSIK_ISA_FN(psik__vgfm_point)(const double *cst, double s, psik_
     vgfm_k K;
     double se, kr, dse, dkr;
     int ok;
-    vgfm_setup(cst, &K);
+    vgfm_setup(cst, &K, 0);
     if (K.l == 0.5)
-        ok = vgfm_core(&K, s, 1, &se, &kr, &dse, &dkr);
+        ok = vgfm_core(&K, s, 1, 0, &se, &kr, &dse, &dkr);
     else
-        ok = vgfm_core(&K, s, 0, &se, &kr, &dse, &dkr);
+        ok = vgfm_core(&K, s, 0, 0, &se, &kr, &dse, &dkr);
     if (!ok)
         return 0;
     out->se = se;
@@ -237,7 +251,7 @@ PSIK_FM void vgfm_block_body(const vgfm_blk *bk, int half, int cnt,
     int i;
     for (i = 0; i < cnt; i++) {
         double hi = h[i], se, kr, dse, dkr, t;
-        int ok = vgfm_core(K, -hi, half, &se, &kr, &dse, &dkr);
+        int ok = vgfm_core(K, -hi, half, 1, &se, &kr, &dse, &dkr);
         se = vgfm_01(se);
         kr = vgfm_01(kr);
         dse = vgfm_pos(dse);
@@ -321,7 +335,7 @@ PSIK_HIDDEN void psik__vgfm_batch(const psik_model *m, const double *cst, size_t
     vgfm_blk bk;
     vgfm_block_fn fn;
     size_t i0;
-    vgfm_setup(cst, &K);
+    vgfm_setup(cst, &K, 1);
     fn = vgfm_choose(K.l);
     bk.K = &K;
     bk.h_sat = m->h_sat;
