@@ -4,7 +4,8 @@
  * instruction-set variant (psik__isa_limit), over realistic and corner
  * models, heads from 1e-300 to 1e300 with NaN, +-0, +-inf and saturated
  * heads mixed in, counts that are not a multiple of the block size, and
- * NULL outputs; the variants agree with each other; and the fused core
+ * NULL outputs; the variants agree with each other to 1e-14 relative
+ * (bit for bit unless fastmath.h rounds differently with FMA); and the fused core
  * (not the scalar fix-up) takes every head of the bench soil from 1e-6 to
  * 1e10 cm. Accuracy against mpmath is test_accuracy's (batch(all)).
  */
@@ -95,6 +96,7 @@ static void test_batch_equals_eval(void **state)
 {
     static double ref[4][NPT], cur[4][NPT];
     long bad = 0, cross = 0;
+    double worst = 0.0;
     int id, old;
     size_t j;
     (void)state;
@@ -112,16 +114,24 @@ static void test_batch_equals_eval(void **state)
             bad += check_model(&m, first ? ref : cur);
             if (!first)
                 for (q = 0; q < 4; q++)
-                    for (i = 0; i < NPT; i++)
-                        cross += !same(cur[q][i], ref[q][i]);
+                    for (i = 0; i < NPT; i++) {
+                        double d = fabs(cur[q][i] - ref[q][i]), s = fabs(ref[q][i]);
+                        if (same(cur[q][i], ref[q][i]))
+                            continue;
+                        cross++;
+                        d = s > 1e-300 ? d / s : d / 1e-300;
+                        if (!(d <= worst))
+                            worst = d;
+                    }
             first = 0;
         }
     }
     psik__isa_limit(old);
     printf("# vg_free_m batch: %zu models x %d heads, every variant here: %ld values differ "
-           "from psik_eval, %ld between variants\n", NMOD, NPT, bad, cross);
+           "from psik_eval; between variants %ld differ, by %.3g relative at most\n",
+           NMOD, NPT, bad, cross, worst);
     assert_int_equal(bad, 0);
-    assert_int_equal(cross, 0);
+    assert_true(worst <= 1e-14);
 }
 
 /* The fused core takes every head of the bench soil (no scalar fix-up). */
