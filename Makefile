@@ -69,7 +69,7 @@ ISA_X86  := $(if $(findstring x86_64,$(shell $(CC) -dumpmachine)),1)
 ISA_LIST := $(if $(ISA_X86),sse42 avx2 avx512)
 ISA_sse42  := -msse4.2
 ISA_avx2   := -mavx2 -mfma
-ISA_avx512 := -mavx512f -mavx512dq -mavx512vl -mavx2 -mfma -mprefer-vector-width=512
+ISA_avx512 := -mavx512f -mavx512dq -mavx512vl -mavx2 -mfma -mprefer-vector-width=256
 BATCH_SRC := $(sort $(wildcard lib/batch_*.c))
 ISA_OBJ  := $(foreach v,$(ISA_LIST),$(BATCH_SRC:lib/%.c=$(B)/obj/%-$(v).o))
 LIB_OBJ  += $(ISA_OBJ)
@@ -184,10 +184,11 @@ $(B)/tsan/test_threads: tests/unit/test_threads.c $(T_HELP) $(LIB_SRC) tests/uni
 
 # ---------------------------------------------------------------- bench
 # Speed as ratios to a pow()-based baseline in the same process; never
-# fails on speed (tests/bench/bench.c says how it measures).
+# fails on speed (tests/bench/bench.c says how it measures). KINDS="vgm bcm"
+# benches only those kinds.
 BENCH_SRC := $(sort $(wildcard tests/bench/*.c))
 bench: $(B)/bench/psik_bench
-	@$(B)/bench/psik_bench
+	@$(B)/bench/psik_bench $(KINDS)
 
 $(B)/bench/psik_bench: $(BENCH_SRC) tests/bench/bench.h $(LIB_A)
 	@mkdir -p $(dir $@)

@@ -22,13 +22,15 @@
  * scalar path's values. The clamps are eval.c's, as selects.
  *
  * Instruction sets (isa.h): this file is compiled once per variant
- * (portable, SSE4.2, AVX2 with FMA, AVX-512 with FMA and 512-bit vectors)
- * and psik__isa() picks one per call, for the batch loop and for the
- * single point psik_eval uses (the widest scalar variant there). Fused
- * multiply-adds appear only where fastmath.h asks for an exact product
- * (two_prod), which gives the same bits as the portable split; no
- * contraction elsewhere (-ffp-contract=off, pragma for clang), so every
- * variant gives identical bits, equal to psik_eval's.
+ * (portable, SSE4.2, AVX2 with FMA, AVX-512 with FMA on 256-bit vectors:
+ * 512-bit ones measured 15% slower on this machine) and psik__isa() picks
+ * one per call, for the batch loop and for the single point psik_eval
+ * uses (the widest variant's scalar code). The FMA variants use the
+ * table-free exp of fastmath.h, so their bits differ from the portable
+ * ones by rounding (both within the accuracy goal); on one machine
+ * psik_eval and psik_eval_batch use the same variant's code and give the
+ * same bits. No contraction into fused multiply-adds beyond the explicit
+ * ones (-ffp-contract=off, pragma for clang).
  */
 #include "fast_vg.h"
 #include "fastmath.h"
@@ -52,6 +54,9 @@ PSIK_FM double vc_01(double v)
     return psik__fm_sel(v > 1.0, 1.0, v);
 }
 
+/* Kinds whose core values need no clamping (see the end of vg_core). */
+#define VG_PURE(half, model) ((half) && (model) != PSIK_VGC_MUALEM_AE)
+
 /* The fused point. half: l == 1/2 (a constant after inlining). Returns
  * the "in range" flag; the values are garbage where it is 0. */
 PSIK_FM int vg_core(const psik_vgc *c, double s, int half, int model,
@@ -62,7 +67,7 @@ PSIK_FM int vg_core(const psik_vgc *c, double s, int half, int model,
     double lph, lpl, th, tl, a, b, bl, kh, kl, mb, mbl, e1h, e1l, e2h, e2l, t1, t2;
     double S, ym, em1, g, inv, y, r, invp, dls, dg, se, seL, G, dG, kr, dkr;
     int wet, ok;
-    lph = psik__fm_log_dd(p, &lpl);
+    lph = psik__fm_log_dd_nrm(p, 0.0, &lpl);   /* p >= DBL_MIN where ok */
     psik__fm_mul_dd(n, lph, lpl, &th, &tl);
     wet = th <= 0.0;
     t1 = -th;
@@ -120,17 +125,26 @@ PSIK_FM int vg_core(const psik_vgc *c, double s, int half, int model,
             psik__fm_mul_dd(c->l, esh, esl, &lh, &ll);
             seL = psik__fm_exp_dd(lh, ll);
         }
-        ok = (seL <= DBL_MAX) & (G > 0.0);
         kr = seL * G * G;
         dkr = seL * G * (c->l * G * dls + 2.0 * dG);
-        kr = psik__fm_sel(ok, kr, 0.0);
-        dkr = psik__fm_sel(ok, dkr, 0.0);
+        if (!half) {   /* se^l overflows for l < 0 at the dry end */
+            ok = (seL <= DBL_MAX) & (G > 0.0);
+            kr = psik__fm_sel(ok, kr, 0.0);
+            dkr = psik__fm_sel(ok, dkr, 0.0);
+        }
     }
     *se_o = se;
     *kr_o = kr;
     *dse_o = dls * se;
     *dkr_o = dkr;
-    return (p >= DBL_MIN) & (p <= DBL_MAX) & (th >= -700.0) & (th <= 700.0);
+    ok = (p >= DBL_MIN) & (p <= DBL_MAX) & (th >= -700.0) & (th <= 700.0);
+    if (VG_PURE(half, model))
+        /* se = exp(<= 0) and kr = sqrt(se) g^2 (or se^2 g) lie in [0, 1] by
+         * construction; the derivatives are >= 0 and, where these hold,
+         * finite: eval.c's clamps are then the identity and the block loop
+         * skips them (a lane that fails goes to the scalar fix-up). */
+        ok &= (dls * se <= 1e300) & (dkr <= 1e300);
+    return ok;
 }
 
 PSIK_HIDDEN int PSIK_ISA_FN(psik__vg_point)(const psik_vgc *c, double s, psik_point *out)
@@ -179,14 +193,16 @@ PSIK_FM void vg_block_body(const vg_blk *bk, int half, int model, int cnt,
     for (i = 0; i < cnt; i++) {
         double hi = h[i], se, kr, dse, dkr, t;
         int ok = vg_core(bk->c, -hi, half, model, &se, &kr, &dse, &dkr);
-        se = vc_01(se);
-        kr = vc_01(kr);
-        dse = vc_pos(dse);
-        dkr = vc_pos(dkr);
+        if (!VG_PURE(half, model)) {
+            se = vc_01(se);
+            kr = vc_01(kr);
+            dse = vc_pos(dse);
+            dkr = vc_pos(dkr);
+        }
         t = tr + dts * se;
         th[i] = psik__fm_sel(t > ts, ts, t);
         kk[i] = ks * kr;
-        cc[i] = vc_pos(dts * dse);
+        cc[i] = VG_PURE(half, model) ? dts * dse : vc_pos(dts * dse);
         dk[i] = vc_pos(ks * dkr);
         bad[i] = (unsigned char)(!(hi < h_sat) | !ok);
     }
@@ -232,7 +248,9 @@ PSIK_HIDDEN vg_block_fn PSIK_ISA_FN(psik__vg_pick)(const psik_vgc *c)
 PSIK_HIDDEN vg_block_fn psik__vg_pick_sse42(const psik_vgc *c);
 PSIK_HIDDEN vg_block_fn psik__vg_pick_avx2(const psik_vgc *c);
 PSIK_HIDDEN vg_block_fn psik__vg_pick_avx512(const psik_vgc *c);
+PSIK_HIDDEN int psik__vg_point_sse42(const psik_vgc *c, double s, psik_point *out);
 PSIK_HIDDEN int psik__vg_point_avx2(const psik_vgc *c, double s, psik_point *out);
+PSIK_HIDDEN int psik__vg_point_avx512(const psik_vgc *c, double s, psik_point *out);
 #endif
 
 static vg_block_fn pick(const psik_vgc *c)
@@ -251,8 +269,12 @@ static vg_block_fn pick(const psik_vgc *c)
 PSIK_HIDDEN int psik__vg_point_fast(const psik_vgc *c, double s, psik_point *out)
 {
 #if PSIK_ISA_HAVE
-    if (psik__isa() >= PSIK_ISA_ID_AVX2)
-        return psik__vg_point_avx2(c, s, out);
+    switch (psik__isa()) {
+    case PSIK_ISA_ID_AVX512: return psik__vg_point_avx512(c, s, out);
+    case PSIK_ISA_ID_AVX2: return psik__vg_point_avx2(c, s, out);
+    case PSIK_ISA_ID_SSE42: return psik__vg_point_sse42(c, s, out);
+    default: break;
+    }
 #endif
     return psik__vg_point_base(c, s, out);
 }

@@ -73,6 +73,14 @@ PSIK_FM void psik__fm_two_sum(double a, double b, double *s, double *e)
     *e = (a - (t - bb)) + (b - bb);
 }
 
+/* s + e = a + b exactly when |a| >= |b| or a = 0 (Dekker's fast form). */
+PSIK_FM void psik__fm_fast_two_sum(double a, double b, double *s, double *e)
+{
+    double t = a + b;
+    *s = t;
+    *e = b - (t - a);
+}
+
 /* p + e = a * b exactly (Dekker, Veltkamp split; |a|, |b| < 2^995; one
  * fused multiply-add where the instruction set has it, same bits). */
 PSIK_FM void psik__fm_two_prod(double a, double b, double *p, double *e)
@@ -98,13 +106,61 @@ PSIK_FM void psik__fm_mul_dd(double c, double xh, double xl, double *ph, double 
 {
     double p, e;
     psik__fm_two_prod(c, xh, &p, &e);
-    psik__fm_two_sum(p, e + c * xl, ph, pl);
+    psik__fm_fast_two_sum(p, e + c * xl, ph, pl);
 }
 
 #define PSIK_FM_LN2HI 6.93147180369123816490e-01   /* 0x3fe62e42fee00000: 32 bits */
 #define PSIK_FM_LN2LO 1.90821492927058770002e-10
 #define PSIK_FM_SHIFT 6755399441055744.0            /* 0x1.8p52 */
 
+#if defined(__FMA__)
+/* With fused multiply-adds (the AVX2 and AVX-512 variants, isa.h) the core
+ * needs no table and so no gathers: k = round(x / ln 2), r = x - k ln 2 +
+ * lo in the same Cody-Waite form (|r| <= 0.347), e^r - 1 = r + ql with
+ * ql = q + rl (1 + r + q), q = r^2 (1/2! + r/3! + ... + r^12/14!) by Estrin's scheme in fused
+ * multiply-adds (truncation below 2^-62 relative), thi = 1, tlo = 0; the
+ * callers below are the same. Results differ from the table form by rounding only (both
+ * below 1 ulp, tests/unit/test_fastmath.c measures each build). */
+PSIK_FM void psik__fm_exp_core(double x, double lo, double *thi_o, double *tlo_o,
+                               double *r_o, double *ql_o, double *s1, double *s2)
+{
+    double xc = psik__fm_sel(x > 710.0, 710.0, x);
+    double sh, k, r0, c, r, rl, p, ql;
+    uint64_t e2, k1, k2;
+    xc = psik__fm_sel(xc < -746.0, -746.0, xc);
+    sh = __builtin_fma(xc, 1.4426950408889634, PSIK_FM_SHIFT);   /* 1 / ln 2 */
+    e2 = psik__fm_bits(sh) - psik__fm_bits(PSIK_FM_SHIFT) + 2048u;   /* k + 2048 */
+    k = sh - PSIK_FM_SHIFT;
+    r0 = xc - k * PSIK_FM_LN2HI;                                  /* exact */
+    c = k * PSIK_FM_LN2LO;
+    psik__fm_two_sum(r0, -c, &r, &rl);
+    rl = rl + lo;
+    {   /* Estrin's scheme: short dependency chains for the scalar callers */
+        double r2 = r * r, r4 = r2 * r2, r8 = r4 * r4;
+        double p01 = __builtin_fma(1.0 / 6.0, r, 0.5);
+        double p23 = __builtin_fma(1.0 / 120.0, r, 1.0 / 24.0);
+        double p45 = __builtin_fma(1.0 / 5040.0, r, 1.0 / 720.0);
+        double p67 = __builtin_fma(1.0 / 362880.0, r, 1.0 / 40320.0);
+        double p89 = __builtin_fma(1.0 / 39916800.0, r, 1.0 / 3628800.0);
+        double pab = __builtin_fma(1.0 / 6227020800.0, r, 1.0 / 479001600.0);
+        double q0 = __builtin_fma(p23, r2, p01), q1 = __builtin_fma(p67, r2, p45);
+        double q2 = __builtin_fma(pab, r2, p89), q3 = 1.0 / 87178291200.0;   /* 1/14! */
+        p = __builtin_fma(__builtin_fma(q3, r4, q2), r8, __builtin_fma(q1, r4, q0));
+    }
+    /* rl e^r in full: with |r| up to 0.35 the r^2/2 term of a low part
+     * 2^-40 |x| is still worth ulps */
+    p = r * r * p;
+    ql = p + rl * (1.0 + (r + p));
+    *thi_o = 1.0;
+    *tlo_o = 0.0;
+    *r_o = r;
+    *ql_o = ql;
+    k1 = e2 >> 1;
+    k2 = e2 - k1;
+    *s1 = psik__fm_double((k1 - 1u) << 52);                /* 2^(k1 - 1024) */
+    *s2 = psik__fm_double((k2 - 1u) << 52);                /* 2^(k2 - 1024) */
+}
+#else
 /* The shared core of exp and expm1 at x + lo (|lo| <= 2^-40 |x| or tiny).
  * x is first clamped to [-746, 710] (NaN stays NaN); k = round(128 x / ln 2)
  * through the 1.5 * 2^52 shift, k = 128 e + j; r = x - k ln2/128 + lo in
@@ -146,16 +202,31 @@ PSIK_FM void psik__fm_exp_core(double x, double lo, double *thi_o, double *tlo_o
     *s1 = psik__fm_double((k1 - 1u) << 52);                /* 2^(k1 - 1024) */
     *s2 = psik__fm_double((k2 - 1u) << 52);                /* 2^(k2 - 1024) */
 }
+#endif
 
 /* exp(x + lo): error < 1 ulp (normal results), < 1 ulp of the smallest
  * subnormal below; 0 below -745.2, +inf above 709.8, NaN for NaN. */
+/* 2^(j/128) e^(r + rl) before the scaling by 2^e: thi + [tlo + (thi +
+ * tlo)(r + ql)] from the table; 1 + r + ql without one (1 + r summed
+ * exactly, which keeps the error near half an ulp with |r| up to 0.35). */
+PSIK_FM double psik__fm_exp_join(double th, double tlo, double r, double ql)
+{
+#if defined(__FMA__)
+    double s, e;
+    (void)th;
+    (void)tlo;
+    psik__fm_fast_two_sum(1.0, r, &s, &e);
+    return s + (e + ql);
+#else
+    return th + (tlo + (th + tlo) * (r + ql));
+#endif
+}
+
 PSIK_FM double psik__fm_exp_dd(double x, double lo)
 {
-    double th, tlo, r, ql, s1, s2, tl;
+    double th, tlo, r, ql, s1, s2;
     psik__fm_exp_core(x, lo, &th, &tlo, &r, &ql, &s1, &s2);
-    /* 2^(j/128) e^(r + rl) = thi + [tlo + (thi + tlo)(r + ql)] */
-    tl = tlo + (th + tlo) * (r + ql);
-    return ((th + tl) * s1) * s2;
+    return (psik__fm_exp_join(th, tlo, r, ql) * s1) * s2;
 }
 
 PSIK_FM double psik__fm_exp(double x)
@@ -170,10 +241,9 @@ PSIK_FM double psik__fm_exp(double x)
  * expm1 = exp to rounding. */
 PSIK_FM void psik__fm_exp_expm1_dd(double x, double lo, double *e, double *em1)
 {
-    double th, tlo, r, ql, s1, s2, two_k, ex, em, tl;
+    double th, tlo, r, ql, s1, s2, two_k, ex, em;
     psik__fm_exp_core(x, lo, &th, &tlo, &r, &ql, &s1, &s2);
-    tl = tlo + (th + tlo) * (r + ql);
-    ex = ((th + tl) * s1) * s2;
+    ex = (psik__fm_exp_join(th, tlo, r, ql) * s1) * s2;
     two_k = s1 * s2;
     {
         double sa, ea, p, pe, u, ue;
@@ -194,27 +264,29 @@ PSIK_FM double psik__fm_expm1(double x)
     return psik__fm_sel(x == 0.0, x, em1);       /* keeps the sign of -0 */
 }
 
-/* log(x) as hi + lo for finite x > 0 (normal or subnormal), absolute error
- * below 2^-58 (and relative below 2^-58 when 0.707 < x < 1.414).
- * Method: x = 2^k z with z in [sqrt(2)/2, sqrt(2)) from the bits; c = j/128
- * the nearest multiple of 1/128 (z - c exact, Sterbenz); r = (z - c)/c as
- * rh + rl (rh = (z - c) * fl(1/c) from the table, rl from the exact
- * remainder: c has 8 bits); log z = log c + log1p(r) with log c in two
+/* log(x + xl) as hi + lo for normal finite x > 0 and |xl| <= ulp(x),
+ * absolute error below 2^-58 (and relative below 2^-58 when 0.707 < x <
+ * 1.414). Method: x = 2^k z with z in [sqrt(2)/2, sqrt(2)) from the bits;
+ * c = j/128 the nearest multiple of 1/128 (z - c exact, Sterbenz); r =
+ * (z - c)/c as rh + rl (rh = (z - c) * fl(1/c) from the table, rl from the
+ * exact remainder: c has 8 bits; xl enters rl as xl 2^-k (1 - rh) / c,
+ * to second order, with no division); log z = log c + log1p(r) with log c in two
  * parts from the table and log1p(r) = r - r^2/2 + r^3 (1/3 - r/4 + ... +
  * r^4/7) for |r| <= 0.0055 (truncation below 2^-63); k ln 2 in two parts.
- * Zero, negative, infinite and NaN x give garbage: callers select. */
-PSIK_FM double psik__fm_log_dd(double x, double *lo)
+ * Zero, subnormal, negative, infinite and NaN x give garbage: callers
+ * select. */
+PSIK_FM double psik__fm_log_dd_nrm(double x, double xl, double *lo)
 {
-    int sub = x < DBL_MIN;
-    double xs = psik__fm_sel(sub, x * 18014398509481984.0, x);    /* 2^54 */
-    double koff = psik__fm_sel(sub, 54.0, 0.0);
-    uint64_t ix = psik__fm_bits(xs);
+    uint64_t ix = psik__fm_bits(x);
     uint64_t tmp = ix - 0x3fe6a09e667f3bcdULL + 0x8000000000000000ULL;
     uint64_t kk = tmp >> 52;                              /* k + 2048 */
     uint64_t iz = ix - ((kk - 2048u) << 52);
     double z = psik__fm_double(iz);
-    double k = (psik__fm_double(0x4330000000000000ULL | kk) - 4503599627370496.0)
-               - 2048.0 - koff;
+    double k = psik__fm_double(0x4330000000000000ULL | kk) - 4503599627370496.0 - 2048.0;
+    /* 2^-k for the low part (k of a normal x is in [-1022, 1023]: 2^-k is
+     * normal except at k = 1023, where xl 2^-k only loses digits far below
+     * the result's ulp) */
+    double sk = psik__fm_double((3071u - kk) << 52);
     double jd = z * 128.0 + PSIK_FM_SHIFT;
     uint64_t j = (psik__fm_bits(jd) - psik__fm_bits(PSIK_FM_SHIFT)) - PSIK_FM_LOG_J0;
     double c = (jd - PSIK_FM_SHIFT) * (1.0 / 128.0);
@@ -222,16 +294,30 @@ PSIK_FM double psik__fm_log_dd(double x, double *lo)
     double invc = psik__fm_log_tab[3 * j];
     double lch = psik__fm_log_tab[3 * j + 1], lcl = psik__fm_log_tab[3 * j + 2];
     double rh = d * invc, ph, pl, rl, r2, P, H, e1, H2, e2, l, hi;
-    /* rh c exactly (c has 8 bits: only rh needs splitting) */
-    psik__fm_two_prod(rh, c, &ph, &pl);
-    rl = ((d - ph) - pl) * invc;
+    psik__fm_two_prod(rh, c, &ph, &pl);                  /* rh c exactly */
+    rl = ((d - ph) - pl) * invc + ((xl * sk) * invc) * (1.0 - rh);
     r2 = rh * rh;
     P = (1.0 / 3.0 - rh * 0.25) + r2 * ((0.2 - rh * (1.0 / 6.0)) + r2 * (1.0 / 7.0));
-    psik__fm_two_sum(lch, rh, &H, &e1);
-    psik__fm_two_sum(k * PSIK_FM_LN2HI, H, &H2, &e2);
+    /* |lch| >= |rh| (lch = 0 at c = 1) and |k ln2| >= |H|: the fast sums */
+    psik__fm_fast_two_sum(lch, rh, &H, &e1);
+    psik__fm_fast_two_sum(k * PSIK_FM_LN2HI, H, &H2, &e2);
     l = e2 + (e1 + (k * PSIK_FM_LN2LO + (lcl + (rl + (r2 * (rh * P) - 0.5 * r2)))));
     hi = H2 + l;
     *lo = l - (hi - H2);
+    return hi;
+}
+
+/* log(x) as hi + lo for finite x > 0, normal or subnormal (scaled by
+ * 2^54 first), with psik__fm_log_dd_nrm's error. */
+PSIK_FM double psik__fm_log_dd(double x, double *lo)
+{
+    int sub = x < DBL_MIN;
+    double xs = psik__fm_sel(sub, x * 18014398509481984.0, x);    /* 2^54 */
+    double koff = psik__fm_sel(sub, 54.0 * PSIK_FM_LN2HI, 0.0);
+    double koffl = psik__fm_sel(sub, 54.0 * PSIK_FM_LN2LO, 0.0);
+    double l0, h0 = psik__fm_log_dd_nrm(xs, 0.0, &l0), hi, t;
+    psik__fm_fast_two_sum(h0, -koff, &hi, &t);   /* |h0| > 671 > koff when sub */
+    *lo = t + (l0 - koffl);
     return hi;
 }
 
@@ -244,15 +330,15 @@ PSIK_FM double psik__fm_log(double x)
     return psik__fm_sel(x >= 0.0, v, NAN);
 }
 
-/* log1p(x) for x > -1, finite: log(u) + e/u with u = fl(1 + x) and e the
+/* log1p(x) for x > -1, finite: log(u + e) with u = fl(1 + x) and e the
  * rounding error of that sum (exact by Sterbenz on both sides of 1). */
 PSIK_FM double psik__fm_log1p_fin(double x)
 {
     double u = 1.0 + x, lo, hi;
     double e1 = 1.0 - (u - x), e0 = x - (u - 1.0);
     double e = psik__fm_sel(x >= 1.0, e1, e0);
-    hi = psik__fm_log_dd(u, &lo);
-    return hi + (lo + e / u);
+    hi = psik__fm_log_dd_nrm(u, e, &lo);
+    return hi + lo;
 }
 
 /* log1p(x) as hi + lo for finite x > -1 (relative error about 2^-60). */
@@ -261,8 +347,8 @@ PSIK_FM double psik__fm_log1p_dd(double x, double *lo)
     double u = 1.0 + x, l, hi, s, t;
     double e1 = 1.0 - (u - x), e0 = x - (u - 1.0);
     double e = psik__fm_sel(x >= 1.0, e1, e0);
-    hi = psik__fm_log_dd(u, &l);
-    psik__fm_two_sum(hi, l + e / u, &s, &t);
+    hi = psik__fm_log_dd_nrm(u, e, &l);
+    psik__fm_fast_two_sum(hi, l, &s, &t);
     *lo = t;
     return s;
 }

@@ -201,7 +201,19 @@ static int bench_params(psik_kind kind, double *p)
     return 0;
 }
 
-int main(void)
+/* Optional arguments: kind names to bench (all kinds when none). */
+static int wanted(int argc, char **argv, const char *name)
+{
+    int a;
+    if (argc < 2)
+        return 1;
+    for (a = 1; a < argc; a++)
+        if (strcmp(argv[a], name) == 0)
+            return 1;
+    return 0;
+}
+
+int main(int argc, char **argv)
 {
     unsigned long long lcg = 88172645463325252ULL;
     double t_exp, t_empty, nb, np;
@@ -245,7 +257,7 @@ int main(void)
             {"table", base_all, psik_table_loop},
         };
         size_t r;
-        if (name == NULL)
+        if (name == NULL || !wanted(argc, argv, name))
             continue;
         memset(&bm, 0, sizeof bm);
         bm.kind = (psik_kind)kind;
