@@ -27,6 +27,7 @@
  * Error: measured against mpmath tables (tests/unit/test_accuracy.c).
  */
 #include "psik_internal.h"
+#include "fastmath.h"
 
 #include <float.h>
 #include <math.h>
@@ -43,6 +44,19 @@
 #define A_C_LO 5
 #define A_S2_HI 6  /* sigma^2 / 2 in two parts */
 #define A_S2_LO 7
+#define A_LSM_HI 8 /* ln s_m in two parts (for batch_kosugi.c) */
+#define A_LSM_LO 9
+#define A_RS_HI 10 /* 1/sigma in two parts (for batch_kosugi.c) */
+#define A_RS_LO 11
+
+/* The fused point of batch_kosugi.c at suction s (aux as above): returns
+ * 2 where it gives every value, 1 where it gives only Se (out->se), 0
+ * where it gives none. */
+PSIK_HIDDEN int psik__kos_point_fast(const double *a, double s, psik_point *out);
+/* psik_eval_batch for this row (batch_kosugi.c). */
+PSIK_HIDDEN void psik__kos_batch(const psik_model *m, size_t count, const double *h,
+                                 double *theta, double *k, double *capacity,
+                                 double *dk_dh);
 
 /* The normal range is left below Q(37.5) ~ 4.6e-308. */
 #define Z_FAR 37.0
@@ -268,22 +282,38 @@ static double s_of_z(const double *a, double zh, double zl)
     return t + t * el;
 }
 
+/* The fused point first (batch_kosugi.c: the batch kernel's values, bit
+ * for bit); where it does not take s, the scalar path above, with the
+ * fused Se where that is in its range, so that psik_se, psik_eval and
+ * psik_eval_batch agree at every head. */
 static void kos_point(const psik_model *m, double s, psik_point *out)
 {
-    double zh, zl;
+    double zh, zl, se = 0.0;
+    int r = 0;
     if (isinf(s)) {
         out->se = out->kr = out->dse = out->dkr = 0.0;
         return;
     }
+    if (!KOS_LD) {
+        r = psik__kos_point_fast(m->aux, s, out);
+        if (r == 2)
+            return;
+        se = out->se;
+    }
     z_of_s(m->aux, s, &zh, &zl);
     kos_core(m->aux, zh, zl, s, q_ld(zh, zl), out);
+    if (!KOS_LD && r == 1)
+        out->se = se;
 }
 
 static double kos_se(const psik_model *m, double s)
 {
     double zh, zl;
+    psik_point p;
     if (isinf(s))
         return 0.0;
+    if (!KOS_LD && psik__kos_point_fast(m->aux, s, &p) >= 1)
+        return p.se;
     z_of_s(m->aux, s, &zh, &zl);
     return kos_q(zh, zl);
 }
@@ -357,6 +387,9 @@ static void kos_prepare(psik_model *m)
     two_sum(0.5 * L, 1.0, &a[A_C_HI], &a[A_C_LO]);
     a[A_S2_HI] = 0.5 * (sig * sig);
     a[A_S2_LO] = 0.5 * fma(sig, sig, -(sig * sig));
+    a[A_LSM_HI] = psik__fm_log_dd(a[A_SM], &a[A_LSM_LO]);
+    a[A_RS_HI] = 1.0 / sig;
+    a[A_RS_LO] = -fma(a[A_RS_HI], sig, -1.0) / sig;
     m->h_sat = 0.0;
 }
 
@@ -374,5 +407,5 @@ const psik_family psik__fam_kosugi = {
     .kr = kos_kr,
     .point_se = kos_point_se,
     .suction = kos_suction,
-    .batch = NULL,              /* psik_eval_batch loops over psik_eval */
+    .batch = KOS_LD ? NULL : psik__kos_batch,   /* extended: psik_eval per head */
 };

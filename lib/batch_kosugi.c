@@ -1,0 +1,316 @@
+/* batch_kosugi.c - fused and vectorised Kosugi (1996) lognormal evaluation
+ * with Mualem conductivity: the point that psik_eval uses where it can, and
+ * the psik_eval_batch kernel (notation of kosugi.c).
+ *
+ * Method. z = ln(s/s_m)/sigma in two doubles (fastmath.h's double-double
+ * log of s minus ln s_m in two parts, times 1/sigma in two parts), w = z +
+ * sigma. At each of v = z, w, with t = |v| (fastmath_normal.h): the
+ * density phi(t) as an unrounded exponential, the Mills ratio M(t) in two
+ * parts, and from them
+ *   Q(v) = phi M (v >= 0)  or  1 - phi M (v < 0), each rounded once;
+ *   ln Q(v) = -t^2/2 - ln sqrt(2 pi) + ln M  or  ln(1 - phi M), in two
+ *   parts (one double-double log);
+ *   H(v) = phi/Q = 1/M  or  phi / Q.
+ * Then Se = Q(z), Kr = exp(L ln Q(z) + 2 ln Q(w)) with the exponent in two
+ * parts (so Kr rounds about once whatever L, and keeps its digits where Se
+ * has underflowed), dSe/dh = phi(z)/(sigma s), dKr/dh = Kr (L H(z) +
+ * 2 H(w)) / (sigma s), written (L + 2) H(z) + 2 (H(w) - H(z)) for L < 0.
+ * Transcendentals per point: three logs, two exps and the exp of Kr; two
+ * table polynomials; three divisions.
+ *
+ * Lanes the core does not take: suction not a positive normal finite
+ * double, z < -30 (the wet tail, where kosugi.c keeps the density's scale
+ * factor apart), w > 37 (Q leaving the normal range), and L < 0 where
+ * H(w) < 2 H(z) (the difference H(w) - H(z) would cancel; kosugi.c
+ * integrates it). They are flagged and recomputed by psik_eval, so they get
+ * exactly the scalar path's values; psik_eval itself calls the same core
+ * (psik__kos_point_fast) first, so every head gets the same bits from
+ * either. The clamps are eval.c's, as selects.
+ *
+ * Instruction sets (isa.h): compiled once per variant, chosen by
+ * psik__isa(); fused multiply-adds only in fastmath.h's exact products, no
+ * contraction elsewhere, so every variant gives identical bits.
+ */
+#include "fastmath.h"
+#include "fastmath_normal.h"
+#include "isa.h"
+
+#include <float.h>
+#include <math.h>
+
+#define KB_BLK 256
+
+/* kosugi.c's aux layout (kos_prepare). */
+#define KB_SIG    1
+#define KB_L      2
+#define KB_C_HI   4
+#define KB_LSM_HI 8
+#define KB_LSM_LO 9
+#define KB_RS_HI  10
+#define KB_RS_LO  11
+
+/* eval.c's clamps, as selects. */
+PSIK_FM double kb_pos(double v)
+{
+    v = psik__fm_sel(v >= 0.0, v, 0.0);
+    return psik__fm_sel(v > DBL_MAX, DBL_MAX, v);
+}
+
+PSIK_FM double kb_01(double v)
+{
+    v = psik__fm_sel(v > 0.0, v, 0.0);
+    return psik__fm_sel(v > 1.0, 1.0, v);
+}
+
+/* Q(v), ln Q(v) = *lh + *ll, H(v) and phi(v) at v = vh + vl,
+ * -30 <= v <= 38 (garbage elsewhere). */
+PSIK_FM void kb_tail(double vh, double vl, int want_log, double *q, double *qh_o,
+                     double *ql_o, double *lh, double *ll, double *hz, double *phi_h,
+                     double *phi_l, double *sc1, double *sc2)
+{
+    int pos = vh >= 0.0;
+    double t = psik__fm_sel(pos, vh, -vh), tl = psik__fm_sel(pos, vl, -vl);
+    double x, lo, th, tlx, s1, s2, mh, ml, ph, pe, qpos, qneg, sc, uh, ue, ul;
+    double A, Al, rA, la, lal, sh, se, ph_v, p2, e2, e3;
+    psik__fmn_phi_exponent(t, tl, &x, &lo);
+    psik__fmn_exp_parts(x, lo, &th, &tlx, &s1, &s2);
+    psik__fmn_mills_dd(t, tl, &mh, &ml);
+    /* Q(t) = (th + tlx)(mh + ml) 2^e in two parts (tlx need not be small
+     * beside th: both products exact), then rounded once */
+    psik__fm_two_prod(th, mh, &ph, &pe);
+    psik__fm_two_prod(tlx, mh, &p2, &e2);
+    psik__fm_two_sum(ph, p2, &ph, &e3);
+    pe = e3 + ((pe + e2) + (th + tlx) * ml);
+    psik__fm_two_sum(ph, pe, &ph, &pe);
+    qpos = ((ph + pe) * s1) * s2;
+    ph_v = ((th + tlx) * s1) * s2;
+    /* 1 - Q(t) for v < 0 (t <= 30 there: 2^e normal, the scaling exact) */
+    sc = s1 * s2;
+    psik__fm_two_sum(1.0, -(ph * sc), &uh, &ue);
+    ul = ue - pe * sc;
+    qneg = uh + ul;
+    A = psik__fm_sel(pos, mh, uh);
+    rA = 1.0 / A;                      /* H: 1/M, or phi/Q below */
+    if (want_log) {
+        /* ln Q: one double-double log of M or of 1 - Q(t) */
+        Al = psik__fm_sel(pos, ml, ul);
+        la = psik__fm_log_dd(A, &lal);
+        lal = lal + Al * rA;
+        psik__fm_two_sum(x, la, &sh, &se);
+        se = se + (lo + lal);
+        psik__fm_two_sum(sh, se, &sh, &se);
+        *lh = psik__fm_sel(pos, sh, la);
+        *ll = psik__fm_sel(pos, se, lal);
+    } else {
+        *lh = *ll = 0.0;
+    }
+    *q = psik__fm_sel(pos, qpos, qneg);
+    *qh_o = psik__fm_sel(pos, ph * sc, uh);
+    *ql_o = psik__fm_sel(pos, pe * sc, ul);
+    *hz = psik__fm_sel(pos, rA, ph_v * rA);
+    *phi_h = th;
+    *phi_l = tlx;
+    *sc1 = s1;
+    *sc2 = s2;
+}
+
+/* The fused point at suction s. Returns 1 where every value is the
+ * core's; *se_ok is 1 where Se is (its range is wider); the values are
+ * garbage where they are not the core's. */
+PSIK_FM int kb_core(const double *a, double s, int half, double *se_o, double *kr_o,
+                    double *dse_o, double *dkr_o, int *se_ok_o)
+{
+    const double sig = a[KB_SIG], L = a[KB_L];
+    double lsh, lsl, dh, dl, zh, zl, e, wh, wl;
+    double qz, lzh, lzl, hz, fh, fl, f1, f2, qw, lwh, lwl, hw, eh, el, kh, kl, kr, b1, b2;
+    double P, Pe, inv, qh, p1, pe1, r, u1, u2, u3, u4, qwh, qwl, u5, u6;
+    int in_s, se_ok;
+    lsh = psik__fm_log_dd(s, &lsl);
+    psik__fm_two_sum(lsh, -a[KB_LSM_HI], &dh, &e);
+    dl = e + (lsl - a[KB_LSM_LO]);
+    psik__fm_two_prod(dh, a[KB_RS_HI], &zh, &e);
+    zl = e + (dh * a[KB_RS_LO] + dl * a[KB_RS_HI]);
+    psik__fm_two_sum(zh, zl, &zh, &zl);
+    psik__fm_two_sum(zh, sig, &wh, &e);
+    wl = e + zl;
+    kb_tail(zh, zl, !half, &qz, &u5, &u6, &lzh, &lzl, &hz, &fh, &fl, &f1, &f2);
+    kb_tail(wh, wl, !half, &qw, &qwh, &qwl, &lwh, &lwl, &hw, &u1, &u2, &u3, &u4);
+    if (half) {
+        /* L = 1/2: Kr = (sqrt(Se) Q(w)) Q(w), the products exact, one
+         * rounding at the end */
+        double sq = sqrt(qz), m1, m1e, m2, m2e;
+        psik__fm_two_prod(sq, qwh, &m1, &m1e);
+        m1e = m1e + sq * qwl;
+        psik__fm_two_prod(m1, qwh, &m2, &m2e);
+        kr = m2 + (m2e + (m1e * qwh + m1 * qwl));
+    } else {
+        /* Kr = exp(L ln Q(z) + 2 ln Q(w)) */
+        psik__fm_mul_dd(L, lzh, lzl, &eh, &el);
+        psik__fm_two_sum(eh, 2.0 * lwh, &kh, &kl);
+        kl = kl + (el + 2.0 * lwl);
+        kr = psik__fm_exp_dd(kh, kl);
+    }
+    b1 = (2.0 * a[KB_C_HI]) * hz + 2.0 * (hw - hz);
+    b2 = L * hz + 2.0 * hw;
+    /* 1/(sigma s) with sigma s = P + Pe exactly; dSe/dh = phi/(sigma s)
+     * from phi = (fh + fl) 2^e unrounded: quotient and exact remainder */
+    psik__fm_two_prod(sig, s, &P, &Pe);
+    inv = 1.0 / P;
+    psik__fm_two_sum(fh, fl, &fh, &fl);
+    qh = fh * inv;
+    psik__fm_two_prod(qh, P, &p1, &pe1);
+    r = ((fh - p1) - pe1) + (fl - qh * Pe);
+    *se_o = qz;
+    *kr_o = kr;
+    *dse_o = ((qh + r * inv) * f1) * f2;
+    *dkr_o = kr * psik__fm_sel(L < 0.0, b1, b2) * inv;
+    in_s = (s >= DBL_MIN) & (s <= DBL_MAX);
+    se_ok = in_s & (zh >= -30.0) & (zh <= 37.0);
+    *se_ok_o = se_ok;
+    return se_ok & (wh <= 37.0) & ((L >= 0.0) | (hw >= 2.0 * hz));
+}
+
+PSIK_HIDDEN int PSIK_ISA_FN(psik__kos_point)(const double *a, double s, psik_point *out);
+PSIK_HIDDEN int PSIK_ISA_FN(psik__kos_point)(const double *a, double s, psik_point *out)
+{
+    double se, kr, dse, dkr;
+    int se_ok, ok;
+    if (a[KB_L] == 0.5)
+        ok = kb_core(a, s, 1, &se, &kr, &dse, &dkr, &se_ok);
+    else
+        ok = kb_core(a, s, 0, &se, &kr, &dse, &dkr, &se_ok);
+    if (se_ok)
+        out->se = se;
+    if (ok) {
+        out->kr = kr;
+        out->dse = dse;
+        out->dkr = dkr;
+    }
+    return se_ok + (se_ok & ok);
+}
+
+/* The constants of one block loop. */
+typedef struct kb_blk {
+    const double *a;
+    double h_sat, tr, dts, ts, ks;
+} kb_blk;
+
+/* One block: outputs (none NULL here) and a flag per lane for the scalar
+ * fix-up. The same assembly as psik_eval in eval.c. half: L == 1/2 (a
+ * constant after inlining). */
+PSIK_FM void kb_block_body(const kb_blk *bk, int half, int cnt, const double *restrict h,
+                           double *restrict th, double *restrict kk, double *restrict cc,
+                           double *restrict dk, uint64_t *restrict bad)
+{
+    const double h_sat = bk->h_sat, tr = bk->tr, dts = bk->dts, ts = bk->ts, ks = bk->ks;
+    const double *a = bk->a;
+    int i;
+    for (i = 0; i < cnt; i++) {
+        double hi = h[i], se, kr, dse, dkr, t;
+        int se_ok, ok = kb_core(a, -hi, half, &se, &kr, &dse, &dkr, &se_ok);
+        se = kb_01(se);
+        kr = kb_01(kr);
+        dse = kb_pos(dse);
+        dkr = kb_pos(dkr);
+        t = tr + dts * se;
+        th[i] = psik__fm_sel(t > ts, ts, t);
+        kk[i] = ks * kr;
+        cc[i] = kb_pos(dts * dse);
+        dk[i] = kb_pos(ks * dkr);
+        bad[i] = (uint64_t)(!(hi < h_sat) | !ok);
+    }
+}
+
+#define KB_BLOCK_ARGS const kb_blk *bk, int cnt, const double *restrict h, \
+    double *restrict th, double *restrict kk, double *restrict cc, \
+    double *restrict dk, uint64_t *restrict bad
+typedef void (*kb_block_fn)(KB_BLOCK_ARGS);
+
+static void PSIK_ISA_FN(kb_half)(KB_BLOCK_ARGS)
+{
+    kb_block_body(bk, 1, cnt, h, th, kk, cc, dk, bad);
+}
+
+static void PSIK_ISA_FN(kb_any)(KB_BLOCK_ARGS)
+{
+    kb_block_body(bk, 0, cnt, h, th, kk, cc, dk, bad);
+}
+
+/* The block loop for these constants. */
+PSIK_HIDDEN kb_block_fn PSIK_ISA_FN(psik__kos_pick)(const double *a);
+PSIK_HIDDEN kb_block_fn PSIK_ISA_FN(psik__kos_pick)(const double *a)
+{
+    return a[KB_L] == 0.5 ? PSIK_ISA_FN(kb_half) : PSIK_ISA_FN(kb_any);
+}
+
+#if PSIK_ISA_BASE
+#if PSIK_ISA_HAVE
+PSIK_HIDDEN kb_block_fn psik__kos_pick_sse42(const double *a);
+PSIK_HIDDEN kb_block_fn psik__kos_pick_avx2(const double *a);
+PSIK_HIDDEN kb_block_fn psik__kos_pick_avx512(const double *a);
+PSIK_HIDDEN int psik__kos_point_avx2(const double *a, double s, psik_point *out);
+#endif
+
+static kb_block_fn kb_pick(const double *a)
+{
+#if PSIK_ISA_HAVE
+    switch (psik__isa()) {
+    case PSIK_ISA_ID_AVX512: return psik__kos_pick_avx512(a);
+    case PSIK_ISA_ID_AVX2: return psik__kos_pick_avx2(a);
+    case PSIK_ISA_ID_SSE42: return psik__kos_pick_sse42(a);
+    default: break;
+    }
+#endif
+    return psik__kos_pick_base(a);
+}
+
+/* The fused point (see kb_core for the return value). */
+PSIK_HIDDEN int psik__kos_point_fast(const double *a, double s, psik_point *out);
+PSIK_HIDDEN int psik__kos_point_fast(const double *a, double s, psik_point *out)
+{
+#if PSIK_ISA_HAVE
+    if (psik__isa() >= PSIK_ISA_ID_AVX2)
+        return psik__kos_point_avx2(a, s, out);
+#endif
+    return psik__kos_point_base(a, s, out);
+}
+
+/* psik_eval_batch for the kosugi row (see psik_family.batch). */
+PSIK_HIDDEN void psik__kos_batch(const psik_model *m, size_t count, const double *h,
+                                 double *theta, double *k, double *capacity,
+                                 double *dk_dh);
+PSIK_HIDDEN void psik__kos_batch(const psik_model *m, size_t count, const double *h,
+                                 double *theta, double *k, double *capacity,
+                                 double *dk_dh)
+{
+    double s_th[KB_BLK], s_k[KB_BLK], s_c[KB_BLK], s_dk[KB_BLK];
+    uint64_t bad[KB_BLK];   /* as wide as a double: one vector per lane group */
+    kb_blk bk;
+    kb_block_fn fn = kb_pick(m->aux);
+    size_t i0;
+    bk.a = m->aux;
+    bk.h_sat = m->h_sat;
+    bk.tr = m->theta_r;
+    bk.ts = m->theta_s;
+    bk.dts = m->theta_s - m->theta_r;
+    bk.ks = m->ks;
+    for (i0 = 0; i0 < count; i0 += KB_BLK) {
+        int cnt = count - i0 < KB_BLK ? (int)(count - i0) : KB_BLK, i;
+        double *th = theta ? theta + i0 : s_th;
+        double *kk = k ? k + i0 : s_k;
+        double *cc = capacity ? capacity + i0 : s_c;
+        double *dk = dk_dh ? dk_dh + i0 : s_dk;
+        fn(&bk, cnt, h + i0, th, kk, cc, dk, bad);
+        for (i = 0; i < cnt; i++) {
+            if (bad[i]) {
+                psik_state st;
+                psik_eval(m, h[i0 + i], &st);
+                th[i] = st.theta;
+                kk[i] = st.k;
+                cc[i] = st.capacity;
+                dk[i] = st.dk_dh;
+            }
+        }
+    }
+}
+#endif /* PSIK_ISA_BASE */
