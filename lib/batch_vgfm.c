@@ -37,9 +37,12 @@
  * For the bench soil (n = 1.56, m = 0.4) and heads 1e-2..1e5 cm no lane is
  * flagged.
  *
- * Instruction sets (isa.h) and rounding: as batch_vg.c. No contraction,
- * exact products by one FMA only inside fastmath.h's two_prod, so every
- * variant gives the same bits; the per-call tables use + - * / only.
+ * Instruction sets (isa.h) and rounding: as batch_vg.c. No contraction;
+ * fused multiply-adds only where fastmath.h uses them. psik__isa() picks
+ * one variant for the batch loop and for the single point alike, so batch
+ * and psik_eval give the same bits (variants with and without FMA may
+ * differ by rounding, tests/unit/test_vgfm.c); the per-call tables use
+ * + - * / only.
  */
 #include "fastmath.h"
 #include "isa.h"
@@ -292,7 +295,9 @@ PSIK_HIDDEN vgfm_block_fn PSIK_ISA_FN(psik__vgfm_pick)(double l)
 PSIK_HIDDEN vgfm_block_fn psik__vgfm_pick_sse42(double l);
 PSIK_HIDDEN vgfm_block_fn psik__vgfm_pick_avx2(double l);
 PSIK_HIDDEN vgfm_block_fn psik__vgfm_pick_avx512(double l);
+PSIK_HIDDEN int psik__vgfm_point_sse42(const double *cst, double s, psik_point *out);
 PSIK_HIDDEN int psik__vgfm_point_avx2(const double *cst, double s, psik_point *out);
+PSIK_HIDDEN int psik__vgfm_point_avx512(const double *cst, double s, psik_point *out);
 #endif
 
 static vgfm_block_fn vgfm_choose(double l)
@@ -308,14 +313,18 @@ static vgfm_block_fn vgfm_choose(double l)
     return psik__vgfm_pick_base(l);
 }
 
-/* The point psik_eval uses (vg.c), the widest scalar variant; 0 for the
- * heads the core does not take. */
+/* The point psik_eval uses (vg.c), in the variant the batch loop uses; 0
+ * for the heads the core does not take. */
 PSIK_HIDDEN int psik__vgfm_point_fast(const double *cst, double s, psik_point *out);
 PSIK_HIDDEN int psik__vgfm_point_fast(const double *cst, double s, psik_point *out)
 {
 #if PSIK_ISA_HAVE
-    if (psik__isa() >= PSIK_ISA_ID_AVX2)
-        return psik__vgfm_point_avx2(cst, s, out);
+    switch (psik__isa()) {
+    case PSIK_ISA_ID_AVX512: return psik__vgfm_point_avx512(cst, s, out);
+    case PSIK_ISA_ID_AVX2: return psik__vgfm_point_avx2(cst, s, out);
+    case PSIK_ISA_ID_SSE42: return psik__vgfm_point_sse42(cst, s, out);
+    default: break;
+    }
 #endif
     return psik__vgfm_point_base(cst, s, out);
 }
