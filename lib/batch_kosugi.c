@@ -31,6 +31,13 @@
  * psik__isa(); fused multiply-adds only in fastmath.h's exact products, no
  * contraction elsewhere, so every variant gives identical bits.
  */
+/* The AVX-512 variant: 512-bit vectors, and gathers for the table lookups
+ * (the generic tuning loads table entries one by one; this loop has about
+ * 30 lookups per lane and runs 1.5 times faster with gathers). */
+#if defined(__AVX512F__) && defined(__GNUC__) && !defined(__clang__)
+#pragma GCC target("tune=icelake-server,prefer-vector-width=512")
+#endif
+
 #include "fastmath.h"
 #include "fastmath_normal.h"
 #include "isa.h"
@@ -79,14 +86,15 @@ PSIK_FM void kb_tail(double vh, double vl, int want_log, double *q, double *qh_o
      * beside th: both products exact), then rounded once */
     psik__fm_two_prod(th, mh, &ph, &pe);
     psik__fm_two_prod(tlx, mh, &p2, &e2);
-    psik__fm_two_sum(ph, p2, &ph, &e3);
+    psik__fm_fast_two_sum(ph, p2, &ph, &e3);            /* |tlx| < th */
     pe = e3 + ((pe + e2) + (th + tlx) * ml);
-    psik__fm_two_sum(ph, pe, &ph, &pe);
-    qpos = ((ph + pe) * s1) * s2;
-    ph_v = ((th + tlx) * s1) * s2;
-    /* 1 - Q(t) for v < 0 (t <= 30 there: 2^e normal, the scaling exact) */
+    psik__fm_fast_two_sum(ph, pe, &ph, &pe);
+    /* 2^e is normal for t <= 37 (the core's range): one scaling */
     sc = s1 * s2;
-    psik__fm_two_sum(1.0, -(ph * sc), &uh, &ue);
+    qpos = (ph + pe) * sc;
+    ph_v = (th + tlx) * sc;
+    /* 1 - Q(t) for v < 0 */
+    psik__fm_fast_two_sum(1.0, -(ph * sc), &uh, &ue);   /* Q(t) <= 1/2 */
     ul = ue - pe * sc;
     qneg = uh + ul;
     A = psik__fm_sel(pos, mh, uh);
@@ -125,12 +133,12 @@ PSIK_FM int kb_core(const double *a, double s, int half, double *se_o, double *k
     double qz, lzh, lzl, hz, fh, fl, f1, f2, qw, lwh, lwl, hw, eh, el, kh, kl, kr, b1, b2;
     double P, Pe, inv, qh, p1, pe1, r, u1, u2, u3, u4, qwh, qwl, u5, u6;
     int in_s, se_ok;
-    lsh = psik__fm_log_dd(s, &lsl);
+    lsh = psik__fm_log_dd_nrm(s, 0.0, &lsl);   /* s < DBL_MIN: flagged */
     psik__fm_two_sum(lsh, -a[KB_LSM_HI], &dh, &e);
     dl = e + (lsl - a[KB_LSM_LO]);
     psik__fm_two_prod(dh, a[KB_RS_HI], &zh, &e);
     zl = e + (dh * a[KB_RS_LO] + dl * a[KB_RS_HI]);
-    psik__fm_two_sum(zh, zl, &zh, &zl);
+    psik__fm_fast_two_sum(zh, zl, &zh, &zl);
     psik__fm_two_sum(zh, sig, &wh, &e);
     wl = e + zl;
     kb_tail(zh, zl, !half, &qz, &u5, &u6, &lzh, &lzl, &hz, &fh, &fl, &f1, &f2);
@@ -156,7 +164,7 @@ PSIK_FM int kb_core(const double *a, double s, int half, double *se_o, double *k
      * from phi = (fh + fl) 2^e unrounded: quotient and exact remainder */
     psik__fm_two_prod(sig, s, &P, &Pe);
     inv = 1.0 / P;
-    psik__fm_two_sum(fh, fl, &fh, &fl);
+    psik__fm_fast_two_sum(fh, fl, &fh, &fl);
     qh = fh * inv;
     psik__fm_two_prod(qh, P, &p1, &pe1);
     r = ((fh - p1) - pe1) + (fl - qh * Pe);

@@ -195,6 +195,7 @@ PSIK_FM void psik__fmn_mills_dd(double t, double tl, double *mh, double *ml)
 {
     double jd = t * PSIK_FMN_PER - 0.5, c, d, p, q, qe, s, e;
     uint64_t j;
+    int k;
     jd = psik__fm_sel(jd >= 0.0, jd, 0.0);                 /* NaN -> 0 */
     jd = psik__fm_sel(jd <= PSIK_FMN_NI - 1.0, jd, PSIK_FMN_NI - 1.0);
     jd = jd + PSIK_FM_SHIFT;
@@ -202,34 +203,39 @@ PSIK_FM void psik__fmn_mills_dd(double t, double tl, double *mh, double *ml)
     c = ((jd - PSIK_FM_SHIFT) + 0.5) * (1.0 / PSIK_FMN_PER);
     d = t - c;
     j = PSIK_FMN_NC * j;
-    p = psik__fmn_mills_tab[j + 11];
-    p = p * d + psik__fmn_mills_tab[j + 10];
-    p = p * d + psik__fmn_mills_tab[j + 9];
-    p = p * d + psik__fmn_mills_tab[j + 8];
-    p = p * d + psik__fmn_mills_tab[j + 7];
-    p = p * d + psik__fmn_mills_tab[j + 6];
-    p = p * d + psik__fmn_mills_tab[j + 5];
-    p = p * d + psik__fmn_mills_tab[j + 4];
-    p = p * d + psik__fmn_mills_tab[j + 3];
-    p = p * d + psik__fmn_mills_tab[j + 2];
+    p = psik__fmn_mills_tab[j + (PSIK_FMN_NC - 1)];
+    for (k = PSIK_FMN_NC - 2; k >= 2; k--)
+        p = p * d + psik__fmn_mills_tab[j + k];
     psik__fm_two_prod(p, d, &q, &qe);
-    psik__fm_two_sum(psik__fmn_mills_tab[j + 0], q, &s, &e);
+    psik__fm_fast_two_sum(psik__fmn_mills_tab[j + 0], q, &s, &e);   /* |q| < M/8 */
     e = e + (qe + psik__fmn_mills_tab[j + 1]);
     /* first-order term of the lo part: M' = t M - 1 */
-    e = e + (t * s - 1.0) * tl;
-    psik__fm_two_sum(s, e, mh, ml);
+    *mh = s;
+    *ml = e + (t * s - 1.0) * tl;
 }
 
 /* exp(x + lo) unrounded: the value is (*th + *tl) * s1 * s2 (fastmath.h's
- * exp core, |*tl| < 2^-7 *th), so that a product with it can be rounded
- * once. */
+ * exp core and the sum of its exp_join left open: thi and the rest from
+ * the table, or fl(1 + r) and the rest, |*tl| < 0.07 *th, without one), so
+ * that a product with it can be rounded once. */
 PSIK_FM void psik__fmn_exp_parts(double x, double lo, double *th, double *tl,
                                  double *s1, double *s2)
 {
     double thi, tlo, r, ql;
     psik__fm_exp_core(x, lo, &thi, &tlo, &r, &ql, s1, s2);
+#if defined(__FMA__)
+    {
+        double s, e;
+        (void)thi;
+        (void)tlo;
+        psik__fm_fast_two_sum(1.0, r, &s, &e);
+        *th = s;
+        *tl = e + ql;
+    }
+#else
     *th = thi;
     *tl = tlo + (thi + tlo) * (r + ql);
+#endif
 }
 
 /* The density at |v| = t + tl as the exponent x + lo of
