@@ -28,9 +28,15 @@
  *   The result is accurate to the condition number of the inverse: where
  *   the curve is nearly flat between modes Se barely changes with s and
  *   any s on the flat stretch reproduces Se* to a few ulp.
+ * - psik_eval, psik_se and psik_eval_batch go through the fused core of
+ *   batch_durner.c (the same formulas with double-double exponents and
+ *   sums, branch-free and vectorised, identical bits in the single point
+ *   and the batch); mode_add below serves the heads outside its range and
+ *   the -DPSIK_EXTENDED build.
  * Error: measured against mpmath tables (tests/unit/test_accuracy.c);
  * inverse worst cases in tests/unit/test_models.c.
  */
+#include "fast_durner.h"
 #include "psik_internal.h"
 
 #include <float.h>
@@ -147,12 +153,52 @@ static void dur_sums(const double *a, double s, dur_sum *acc)
         mode_add(a, i, s, acc);
 }
 
+/* The fused core (batch_durner.c) for psik_eval and psik_eval_batch
+ * alike, so that both give the same bits; not in a PSIK_EXTENDED build,
+ * whose long double sums are the point of that build. */
+#if defined(PSIK_EXTENDED) && LDBL_MANT_DIG >= 64
+#  define DUR_FUSED 0
+#else
+#  define DUR_FUSED 1
+#endif
+
+#if DUR_FUSED
+/* Constants of the fused point and batch kernels (batch_durner.c). */
+static psik_durc dur_coef(const psik_model *m)
+{
+    const double *a = m->aux;
+    int i, nm = (int)a[A_NMODES];
+    psik_durc c;
+    for (i = 0; i < 3; i++) {
+        int j = i < nm ? i : nm - 1;
+        double n = a[A_N(j)];
+        c.alpha[i] = a[A_ALPHA(j)];
+        c.n[i] = n;
+        c.m[i] = (n - 1.0) / n;
+        c.k[i] = n - 1.0;
+        /* the last weight with its remainder, as mode_add sums it */
+        c.w[i] = a[A_W(j)] + (j == nm - 1 ? a[A_WLO] : 0.0);
+        c.c[i] = a[A_C(j)];
+    }
+    c.l = a[A_L];
+    c.nm = nm;
+    return c;
+}
+#endif
+
 static void dur_point(const psik_model *m, double s, psik_point *out)
 {
     const double *a = m->aux;
     const acc_t L = a[A_L];
     dur_sum q;
     acc_t kr;
+#if DUR_FUSED
+    {
+        psik_durc c = dur_coef(m);
+        if (psik__dur_point_fast(&c, s, out))
+            return;
+    }
+#endif
     if (isinf(s)) {
         out->se = out->kr = out->dse = out->dkr = 0.0;
         return;
@@ -189,11 +235,19 @@ static void dur_point(const psik_model *m, double s, psik_point *out)
         out->dkr = (double)(kr * (L * (q.dse / q.se) + 2.0 * (q.dg / q.g)));
 }
 
-/* Se alone: the same sums as dur_point, so psik_se and psik_eval agree
- * to the last bit. */
+/* Se alone: the same path as dur_point (the fused core where it applies,
+ * else the same sums), so psik_se and psik_eval agree to the last bit. */
 static double dur_se(const psik_model *m, double s)
 {
     dur_sum q;
+#if DUR_FUSED
+    {
+        psik_durc c = dur_coef(m);
+        psik_point p;
+        if (psik__dur_point_fast(&c, s, &p))
+            return p.se;
+    }
+#endif
     if (isinf(s))
         return 0.0;
     dur_sums(m->aux, s, &q);
@@ -302,6 +356,18 @@ static double dur_suction(const psik_model *m, double se)
     }
     return s;
 }
+
+#if DUR_FUSED
+static void dur_batch(const psik_model *m, size_t count, const double *h,
+                      double *theta, double *k, double *capacity, double *dk_dh)
+{
+    psik_durc c = dur_coef(m);
+    psik__dur_batch(m, &c, count, h, theta, k, capacity, dk_dh);
+}
+#  define DUR_BATCH dur_batch
+#else
+#  define DUR_BATCH NULL  /* psik_eval_batch loops over psik_eval */
+#endif
 
 /* ------------------------------------------------------------ validation */
 
@@ -472,7 +538,7 @@ const psik_family psik__fam_durner2 = {
     .kr = dur_kr,
     .point_se = NULL,
     .suction = dur_suction,
-    .batch = NULL,              /* psik_eval_batch loops over psik_eval */
+    .batch = DUR_BATCH,
 };
 
 const psik_family psik__fam_durner3 = {
@@ -490,5 +556,5 @@ const psik_family psik__fam_durner3 = {
     .kr = dur_kr,
     .point_se = NULL,
     .suction = dur_suction,
-    .batch = NULL,              /* psik_eval_batch loops over psik_eval */
+    .batch = DUR_BATCH,
 };
