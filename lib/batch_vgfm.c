@@ -274,15 +274,15 @@ PSIK_FM void vgfm_block_body(const vgfm_blk *bk, int half, int cnt,
 
 typedef void (*vgfm_block_fn)(VGFM_BLOCK_ARGS);
 
-static void PSIK_ISA_FN(vgfm_half)(VGFM_BLOCK_ARGS)
-{
-    vgfm_block_body(bk, 1, cnt, h, th, kk, cc, dk, bad);
-}
-
-static void PSIK_ISA_FN(vgfm_any)(VGFM_BLOCK_ARGS)
-{
-    vgfm_block_body(bk, 0, cnt, h, th, kk, cc, dk, bad);
-}
+/* The two loops of this variant, vgfm_half_<isa> and vgfm_any_<isa> (by a
+ * macro, so that tools/mksingle.py sees plain names). */
+#define VGFM_VARIANTS(suffix)                                                   \
+    static void vgfm_half_##suffix(VGFM_BLOCK_ARGS)                             \
+    { vgfm_block_body(bk, 1, cnt, h, th, kk, cc, dk, bad); }                    \
+    static void vgfm_any_##suffix(VGFM_BLOCK_ARGS)                              \
+    { vgfm_block_body(bk, 0, cnt, h, th, kk, cc, dk, bad); }
+#define VGFM_VARIANTS_OF(suffix) VGFM_VARIANTS(suffix)
+VGFM_VARIANTS_OF(PSIK_ISA_NAME)
 
 PSIK_HIDDEN vgfm_block_fn PSIK_ISA_FN(psik__vgfm_pick)(double l);
 PSIK_HIDDEN vgfm_block_fn PSIK_ISA_FN(psik__vgfm_pick)(double l)
