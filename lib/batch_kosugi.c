@@ -11,12 +11,16 @@
  *   ln Q(v) = -t^2/2 - ln sqrt(2 pi) + ln M  or  ln(1 - phi M), in two
  *   parts (one double-double log);
  *   H(v) = phi/Q = 1/M  or  phi / Q.
- * Then Se = Q(z), Kr = exp(L ln Q(z) + 2 ln Q(w)) with the exponent in two
- * parts (so Kr rounds about once whatever L, and keeps its digits where Se
- * has underflowed), dSe/dh = phi(z)/(sigma s), dKr/dh = Kr (L H(z) +
- * 2 H(w)) / (sigma s), written (L + 2) H(z) + 2 (H(w) - H(z)) for L < 0.
- * Transcendentals per point: three logs, two exps and the exp of Kr; two
- * table polynomials; three divisions.
+ * Then Se = Q(z); Kr = (sqrt(Se) Q(w)) Q(w) for L = 1/2 (the usual value;
+ * products exact, one rounding at the end, no logs of Q needed), otherwise
+ * Kr = exp(L ln Q(z) + 2 ln Q(w)) with the exponent in two parts (so Kr
+ * rounds about once whatever L); dSe/dh = phi(z)/(sigma s) as a quotient
+ * with its exact remainder, dKr/dh = Kr (L H(z) + 2 H(w)) / (sigma s),
+ * written (L + 2) H(z) + 2 (H(w) - H(z)) for L < 0.
+ * Work per point: one log (three for L != 1/2), two exps (three), one
+ * square root, two table polynomials (12 lookups each), three divisions.
+ * Measured against the mpmath tables by tests/unit/test_accuracy.c
+ * (batch(all) and eval(all) rows of kosugi).
  *
  * Lanes the core does not take: suction not a positive normal finite
  * double, z < -30 (the wet tail, where kosugi.c keeps the density's scale
@@ -28,8 +32,11 @@
  * either. The clamps are eval.c's, as selects.
  *
  * Instruction sets (isa.h): compiled once per variant, chosen by
- * psik__isa(); fused multiply-adds only in fastmath.h's exact products, no
- * contraction elsewhere, so every variant gives identical bits.
+ * psik__isa(); fused multiply-adds only where fastmath.h uses them, no
+ * contraction elsewhere: the variants with FMA give identical bits, those
+ * without identical bits among themselves; the point psik_eval uses is
+ * the AVX2 variant wherever the batch loop is AVX2 or AVX-512, so batch
+ * and psik_eval agree bit for bit at every level.
  */
 /* The AVX-512 variant: 512-bit vectors, and gathers for the table lookups
  * (the generic tuning loads table entries one by one; this loop has about
@@ -234,15 +241,15 @@ PSIK_FM void kb_block_body(const kb_blk *bk, int half, int cnt, const double *re
     double *restrict dk, uint64_t *restrict bad
 typedef void (*kb_block_fn)(KB_BLOCK_ARGS);
 
-static void PSIK_ISA_FN(kb_half)(KB_BLOCK_ARGS)
-{
-    kb_block_body(bk, 1, cnt, h, th, kk, cc, dk, bad);
-}
-
-static void PSIK_ISA_FN(kb_any)(KB_BLOCK_ARGS)
-{
-    kb_block_body(bk, 0, cnt, h, th, kk, cc, dk, bad);
-}
+/* The two loops of this variant, kb_half_<isa> and kb_any_<isa> (named
+ * through a macro, as the single-header generator reads static names). */
+#define KB_VARIANTS(suffix)                                                           \
+    static void kb_half_##suffix(KB_BLOCK_ARGS)                                       \
+    { kb_block_body(bk, 1, cnt, h, th, kk, cc, dk, bad); }                            \
+    static void kb_any_##suffix(KB_BLOCK_ARGS)                                        \
+    { kb_block_body(bk, 0, cnt, h, th, kk, cc, dk, bad); }
+#define KB_VARIANTS_OF(suffix) KB_VARIANTS(suffix)
+KB_VARIANTS_OF(PSIK_ISA_NAME)
 
 /* The block loop for these constants. */
 PSIK_HIDDEN kb_block_fn PSIK_ISA_FN(psik__kos_pick)(const double *a);
