@@ -50,15 +50,15 @@ lib: $(LIB_A) $(LIB_SO)
 
 $(B)/obj/%.o: lib/%.c include/psik.h lib/psik_internal.h
 	@mkdir -p $(dir $@)
-	$(CC) $(CFLAGS_LIB) -c $< -o $@
+	$(CC) $(CFLAGS_LIB) -MMD -MP -c $< -o $@
 
-# Vectorised kernels (lib/batch_*.c, lib/table.c): the loop vectoriser on,
+# Vectorised kernels (lib/batch_*.c, lib/blocks.c, lib/table.c): the loop vectoriser on,
 # no errno from sqrt, and no contraction into fused multiply-adds, so the
 # scalar, SSE2, AVX2 and AVX-512 paths give the same bits (no -ffast-math).
 FAST_FLAGS := -O3 -fno-math-errno -ffp-contract=off
-FAST_OBJ := $(filter $(B)/obj/batch_%.o $(B)/obj/table.o,$(LIB_OBJ))
+FAST_OBJ := $(filter $(B)/obj/batch_%.o $(B)/obj/blocks.o $(B)/obj/table.o,$(LIB_OBJ))
 $(FAST_OBJ): CFLAGS_LIB += $(FAST_FLAGS)
-$(FAST_OBJ): lib/fastmath.h lib/fastmath_tables.h lib/fast_vg.h lib/isa.h
+$(FAST_OBJ): lib/fastmath.h lib/fastmath_tables.h lib/fast_vg.h lib/isa.h lib/fast_block.h
 
 # On x86-64 every lib/batch_*.c is compiled again per instruction set
 # (lib/isa.h): the ordinary object holds the portable loop and the
@@ -69,17 +69,19 @@ ISA_X86  := $(if $(findstring x86_64,$(shell $(CC) -dumpmachine)),1)
 ISA_LIST := $(if $(ISA_X86),sse42 avx2 avx512)
 ISA_sse42  := -msse4.2
 ISA_avx2   := -mavx2 -mfma
-ISA_avx512 := -mavx512f -mavx512dq -mavx512vl -mavx2 -mfma -mprefer-vector-width=256
+ISA_avx512 := -mavx512f -mavx512dq -mavx512vl -mavx2 -mfma -mprefer-vector-width=512
 BATCH_SRC := $(sort $(wildcard lib/batch_*.c))
 ISA_OBJ  := $(foreach v,$(ISA_LIST),$(BATCH_SRC:lib/%.c=$(B)/obj/%-$(v).o))
 LIB_OBJ  += $(ISA_OBJ)
 $(if $(ISA_X86),$(LIB_SRC:lib/%.c=$(B)/obj/%.o)): CFLAGS_LIB += -DPSIK_ISA_VARIANTS
 define isa_rule
-$(B)/obj/%-$(1).o: lib/%.c include/psik.h lib/psik_internal.h lib/fastmath.h lib/fastmath_tables.h lib/fast_vg.h lib/isa.h
+$(B)/obj/%-$(1).o: lib/%.c include/psik.h lib/psik_internal.h lib/fastmath.h lib/fastmath_tables.h lib/fast_vg.h lib/isa.h lib/fast_block.h
 	@mkdir -p $$(dir $$@)
-	$$(CC) $$(CFLAGS_LIB) $$(FAST_FLAGS) $$(ISA_$(1)) -DPSIK_ISA_NAME=$(1) -c $$< -o $$@
+	$$(CC) $$(CFLAGS_LIB) $$(FAST_FLAGS) $$(ISA_$(1)) -DPSIK_ISA_NAME=$(1) -MMD -MP -c $$< -o $$@
 endef
 $(foreach v,$(ISA_LIST),$(eval $(call isa_rule,$(v))))
+# header dependencies as the compiler saw them
+-include $(LIB_OBJ:.o=.d)
 
 $(LIB_A): $(LIB_OBJ)
 	@mkdir -p $(dir $@)

@@ -32,27 +32,13 @@
  * same bits. No contraction into fused multiply-adds beyond the explicit
  * ones (-ffp-contract=off, pragma for clang).
  */
+#include "fast_block.h"
 #include "fast_vg.h"
 #include "fastmath.h"
 #include "isa.h"
 
 #include <float.h>
 #include <math.h>
-
-#define BLK 256
-
-/* eval.c's clamps, as selects. */
-PSIK_FM double vc_pos(double v)
-{
-    v = psik__fm_sel(v >= 0.0, v, 0.0);
-    return psik__fm_sel(v > DBL_MAX, DBL_MAX, v);
-}
-
-PSIK_FM double vc_01(double v)
-{
-    v = psik__fm_sel(v > 0.0, v, 0.0);
-    return psik__fm_sel(v > 1.0, 1.0, v);
-}
 
 /* Kinds whose core values need no clamping (see the end of vg_core). */
 #define VG_PURE(half, model) ((half) && (model) != PSIK_VGC_MUALEM_AE)
@@ -175,57 +161,50 @@ PSIK_HIDDEN int PSIK_ISA_FN(psik__vg_point)(const psik_vgc *c, double s, psik_po
     return 1;
 }
 
-/* The constants of one block loop. */
-typedef struct vg_blk {
-    const psik_vgc *c;
-    double h_sat, tr, dts, ts, ks;
-} vg_blk;
-
-/* One block: outputs (none NULL here) and a flag per lane for the
- * scalar fix-up. The same assembly as psik_eval in eval.c. */
-PSIK_FM void vg_block_body(const vg_blk *bk, int half, int model, int cnt,
-                           const double *restrict h, double *restrict th,
+/* One block (psik_block_fn, coef the psik_vgc): the same assembly as
+ * psik_eval in eval.c. */
+PSIK_FM void vg_block_body(const psik_model *mo, const psik_vgc *c, int half, int model,
+                           int cnt, const double *restrict h, double *restrict th,
                            double *restrict kk, double *restrict cc,
-                           double *restrict dk, unsigned char *restrict bad)
+                           double *restrict dk, psik_flag *restrict bad)
 {
-    const double h_sat = bk->h_sat, tr = bk->tr, dts = bk->dts, ts = bk->ts, ks = bk->ks;
+    const double h_sat = mo->h_sat, dts = mo->theta_s - mo->theta_r, ks = mo->ks;
     int i;
     for (i = 0; i < cnt; i++) {
-        double hi = h[i], se, kr, dse, dkr, t;
-        int ok = vg_core(bk->c, -hi, half, model, &se, &kr, &dse, &dkr);
+        double hi = h[i], se, kr, dse, dkr;
+        int ok = vg_core(c, -hi, half, model, &se, &kr, &dse, &dkr);
         if (!VG_PURE(half, model)) {
-            se = vc_01(se);
-            kr = vc_01(kr);
-            dse = vc_pos(dse);
-            dkr = vc_pos(dkr);
+            se = psik__fb_01(se);
+            kr = psik__fb_01(kr);
+            dse = psik__fb_pos(dse);
+            dkr = psik__fb_pos(dkr);
         }
-        t = tr + dts * se;
-        th[i] = psik__fm_sel(t > ts, ts, t);
+        th[i] = psik__fb_theta(mo, se);
         kk[i] = ks * kr;
-        cc[i] = VG_PURE(half, model) ? dts * dse : vc_pos(dts * dse);
-        dk[i] = vc_pos(ks * dkr);
-        bad[i] = (unsigned char)(!(hi < h_sat) | !ok);
+        cc[i] = VG_PURE(half, model) ? dts * dse : psik__fb_pos(dts * dse);
+        dk[i] = psik__fb_pos(ks * dkr);
+        bad[i] = (psik_flag)(!(hi < h_sat) | !ok);
     }
 }
 
-#define VG_BLOCK_ARGS const vg_blk *bk, int cnt, const double *restrict h, \
-    double *restrict th, double *restrict kk, double *restrict cc, \
-    double *restrict dk, unsigned char *restrict bad
-#define VG_BLOCK_PASS bk, cnt, h, th, kk, cc, dk, bad
+#define VG_BLOCK_ARGS const psik_model *mo, const void *coef, int cnt, \
+    const double *restrict h, double *restrict th, double *restrict kk, \
+    double *restrict cc, double *restrict dk, psik_flag *restrict bad
 
-typedef void (*vg_block_fn)(VG_BLOCK_ARGS);
+
+typedef psik_block_fn vg_block_fn;
 
 #define VG_VARIANTS(suffix, attr)                                                     \
     attr static void vgm_half_##suffix(VG_BLOCK_ARGS)                                 \
-    { vg_block_body(bk, 1, PSIK_VGC_MUALEM, cnt, h, th, kk, cc, dk, bad); }           \
+    { vg_block_body(mo, (const psik_vgc *)coef, 1, PSIK_VGC_MUALEM, cnt, h, th, kk, cc, dk, bad); } \
     attr static void vgm_any_##suffix(VG_BLOCK_ARGS)                                  \
-    { vg_block_body(bk, 0, PSIK_VGC_MUALEM, cnt, h, th, kk, cc, dk, bad); }           \
+    { vg_block_body(mo, (const psik_vgc *)coef, 0, PSIK_VGC_MUALEM, cnt, h, th, kk, cc, dk, bad); } \
     attr static void vgae_half_##suffix(VG_BLOCK_ARGS)                                \
-    { vg_block_body(bk, 1, PSIK_VGC_MUALEM_AE, cnt, h, th, kk, cc, dk, bad); }        \
+    { vg_block_body(mo, (const psik_vgc *)coef, 1, PSIK_VGC_MUALEM_AE, cnt, h, th, kk, cc, dk, bad); } \
     attr static void vgae_any_##suffix(VG_BLOCK_ARGS)                                 \
-    { vg_block_body(bk, 0, PSIK_VGC_MUALEM_AE, cnt, h, th, kk, cc, dk, bad); }        \
+    { vg_block_body(mo, (const psik_vgc *)coef, 0, PSIK_VGC_MUALEM_AE, cnt, h, th, kk, cc, dk, bad); } \
     attr static void vgb_##suffix(VG_BLOCK_ARGS)                                      \
-    { vg_block_body(bk, 1, PSIK_VGC_BURDINE, cnt, h, th, kk, cc, dk, bad); }          \
+    { vg_block_body(mo, (const psik_vgc *)coef, 1, PSIK_VGC_BURDINE, cnt, h, th, kk, cc, dk, bad); } \
     static vg_block_fn pick_##suffix(const psik_vgc *c)                               \
     {                                                                                 \
         if (c->model == PSIK_VGC_BURDINE) return vgb_##suffix;                        \
@@ -283,45 +262,7 @@ PSIK_HIDDEN void psik__vg_batch(const psik_model *m, const psik_vgc *c, size_t c
                                 const double *h, double *theta, double *k,
                                 double *capacity, double *dk_dh)
 {
-    double s_th[BLK], s_k[BLK], s_c[BLK], s_dk[BLK];
-    unsigned char bad[BLK];
-    vg_blk bk;
-    vg_block_fn fn = pick(c);
-    size_t i0;
-    bk.c = c;
-    bk.h_sat = m->h_sat;
-    bk.tr = m->theta_r;
-    bk.ts = m->theta_s;
-    bk.dts = m->theta_s - m->theta_r;
-    bk.ks = m->ks;
-    if (fn == NULL) {   /* no block loop for this model: psik_eval per head */
-        for (i0 = 0; i0 < count; i0++) {
-            psik_state st;
-            psik_eval(m, h[i0], &st);
-            if (theta) theta[i0] = st.theta;
-            if (k) k[i0] = st.k;
-            if (capacity) capacity[i0] = st.capacity;
-            if (dk_dh) dk_dh[i0] = st.dk_dh;
-        }
-        return;
-    }
-    for (i0 = 0; i0 < count; i0 += BLK) {
-        int cnt = count - i0 < BLK ? (int)(count - i0) : BLK, i;
-        double *th = theta ? theta + i0 : s_th;
-        double *kk = k ? k + i0 : s_k;
-        double *cc = capacity ? capacity + i0 : s_c;
-        double *dk = dk_dh ? dk_dh + i0 : s_dk;
-        fn(&bk, cnt, h + i0, th, kk, cc, dk, bad);
-        for (i = 0; i < cnt; i++) {
-            if (bad[i]) {
-                psik_state st;
-                psik_eval(m, h[i0 + i], &st);
-                th[i] = st.theta;
-                kk[i] = st.k;
-                cc[i] = st.capacity;
-                dk[i] = st.dk_dh;
-            }
-        }
-    }
+    psik__blocks_run(m, c, pick(c), count, h, theta, k, capacity, dk_dh);
 }
+
 #endif /* PSIK_ISA_BASE */

@@ -17,9 +17,13 @@
  * - From Se (inverse, K(theta), D(theta)): s/s_b = Se^(-1/lambda) and
  *   Kr = Se^(L + 2 + 2/lambda), both exponents in two parts: no round trip
  *   through a rounded head.
+ * - psik_eval, psik_kr and the batch take the fused point of batch_bc.c
+ *   (the same error model in branch-free form) wherever it applies; the
+ *   forms here cover the rest (s_b/s subnormal, infinite s).
  * Error: measured against mpmath tables (tests/unit/test_accuracy.c).
  */
 #include "psik_internal.h"
+#include "fast_simple.h"
 
 #include <float.h>
 #include <math.h>
@@ -62,10 +66,24 @@ static double ratio_pow(double sb, double s, double eh, double el)
     return psik__pow2(ldexp(q, k), eh, el) * v;
 }
 
+static psik_bcc bc_coef(const psik_model *m)
+{
+    psik_bcc c;
+    c.sb = m->aux[A_SB];
+    c.lam = m->aux[A_LAM];
+    c.ek_hi = m->aux[A_EK_HI];
+    c.ek_lo = m->aux[A_EK_LO];
+    return c;
+}
+
+/* The fused point (batch_bc.c) where it applies, else the forms below. */
 static void bc_point(const psik_model *m, double s, psik_point *out)
 {
     const double *a = m->aux;
     double se, kr;
+    psik_bcc c = bc_coef(m);
+    if (psik__bc_point_fast(&c, s, out))
+        return;
     if (isinf(s)) {
         out->se = out->kr = out->dse = out->dkr = 0.0;
         return;
@@ -78,18 +96,27 @@ static void bc_point(const psik_model *m, double s, psik_point *out)
     out->dkr = a[A_EK_HI] * kr / s;
 }
 
+/* Se and Kr from the point, so that psik_se and psik_kr equal psik_eval's
+ * values bit for bit. */
 static double bc_se(const psik_model *m, double s)
 {
-    if (isinf(s))
-        return 0.0;
-    return ratio_pow(m->aux[A_SB], s, m->aux[A_LAM], 0.0);
+    psik_point p;
+    bc_point(m, s, &p);
+    return p.se;
 }
 
 static double bc_kr(const psik_model *m, double s)
 {
-    if (isinf(s))
-        return 0.0;
-    return ratio_pow(m->aux[A_SB], s, m->aux[A_EK_HI], m->aux[A_EK_LO]);
+    psik_point p;
+    bc_point(m, s, &p);
+    return p.kr;
+}
+
+static void bc_batch(const psik_model *m, size_t count, const double *h,
+                     double *theta, double *k, double *capacity, double *dk_dh)
+{
+    psik_bcc c = bc_coef(m);
+    psik__bc_batch(m, &c, count, h, theta, k, capacity, dk_dh);
 }
 
 static void bc_point_se(const psik_model *m, double se, psik_point *out)
@@ -208,7 +235,7 @@ const psik_family psik__fam_bcm = {
     .kr = bc_kr,
     .point_se = bc_point_se,
     .suction = bc_suction,
-    .batch = NULL,              /* psik_eval_batch loops over psik_eval */
+    .batch = bc_batch,
 };
 
 const psik_family psik__fam_bcb = {
@@ -225,5 +252,5 @@ const psik_family psik__fam_bcb = {
     .kr = bc_kr,
     .point_se = bc_point_se,
     .suction = bc_suction,
-    .batch = NULL,              /* psik_eval_batch loops over psik_eval */
+    .batch = bc_batch,
 };

@@ -5,30 +5,37 @@
  * the pair used by analytical infiltration and steady-flux solutions
  * (matric flux potential K/alpha exactly).
  *
- * Method: exp(-alpha s) with one rounding in alpha s, which the
- * exponential amplifies by alpha s, the condition number itself; from Se
+ * Method: every evaluator takes the fused point of batch_gardner.c
+ * (alpha s in two doubles, so about 1 ulp whatever alpha s); from Se
  * (inverse, K(theta), D(theta)) s = -ln(Se)/alpha and Kr = Se directly.
  * Error: about 1 ulp x max(1, alpha s) (tests/unit/test_accuracy.c).
  */
 #include "psik_internal.h"
+#include "fast_simple.h"
 
 #include <math.h>
 
 #define P_ALPHA 2
 #define A_ALPHA 0
 
+/* The fused point (batch_gardner.c): also what psik_kr and the batch give. */
 static void g_point(const psik_model *m, double s, psik_point *out)
 {
-    double a = m->aux[A_ALPHA], se = exp(-a * s);
-    out->se = se;
-    out->kr = se;
-    out->dse = a * se;
-    out->dkr = a * se;
+    psik__gardner_point_fast(m->aux[A_ALPHA], s, out);
 }
 
+/* Se = Kr, both from the point, so that every evaluator agrees bit for bit. */
 static double g_se(const psik_model *m, double s)
 {
-    return exp(-m->aux[A_ALPHA] * s);
+    psik_point p;
+    g_point(m, s, &p);
+    return p.se;
+}
+
+static void g_batch(const psik_model *m, size_t count, const double *h,
+                    double *theta, double *k, double *capacity, double *dk_dh)
+{
+    psik__gardner_batch(m, count, h, theta, k, capacity, dk_dh);
 }
 
 static void g_point_se(const psik_model *m, double se, psik_point *out)
@@ -80,5 +87,5 @@ const psik_family psik__fam_gardner = {
     .kr = g_se,
     .point_se = g_point_se,
     .suction = g_suction,
-    .batch = NULL,              /* psik_eval_batch loops over psik_eval */
+    .batch = g_batch,
 };

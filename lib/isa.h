@@ -49,4 +49,25 @@ PSIK_HIDDEN int psik__isa(void);
  * other thread evaluates). Returns the previous cap. */
 PSIK_HIDDEN int psik__isa_limit(int id);
 
+/* Inside #if PSIK_ISA_BASE: declares name_base, name_sse42, name_avx2 and
+ * name_avx512 (function type T, defined by the variants of this file) and
+ * defines name_pick(), the one psik__isa() chooses. */
+#if PSIK_ISA_HAVE
+#  define PSIK_ISA_SELECT(T, name)                                          \
+    PSIK_HIDDEN T name##_base, name##_sse42, name##_avx2, name##_avx512;    \
+    static T *name##_pick(void)                                             \
+    {                                                                       \
+        switch (psik__isa()) {                                              \
+        case PSIK_ISA_ID_AVX512: return name##_avx512;                      \
+        case PSIK_ISA_ID_AVX2: return name##_avx2;                          \
+        case PSIK_ISA_ID_SSE42: return name##_sse42;                        \
+        default: return name##_base;                                        \
+        }                                                                   \
+    }
+#else
+#  define PSIK_ISA_SELECT(T, name)                                          \
+    PSIK_HIDDEN T name##_base;                                              \
+    static T *name##_pick(void) { return name##_base; }
+#endif
+
 #endif

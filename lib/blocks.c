@@ -1,0 +1,68 @@
+/* blocks.c - the block drivers of the batch kernels (fast_block.h). */
+#include "fast_block.h"
+
+static void redo(const psik_model *m, double h, double *th, double *kk, double *cc, double *dk)
+{
+    psik_state st;
+    psik_eval(m, h, &st);
+    *th = st.theta;
+    *kk = st.k;
+    *cc = st.capacity;
+    *dk = st.dk_dh;
+}
+
+PSIK_HIDDEN void psik__blocks_run(const psik_model *m, const void *coef, psik_block_fn fn,
+                                  size_t count, const double *h, double *theta, double *k,
+                                  double *capacity, double *dk_dh)
+{
+    double s_th[PSIK_BLK], s_k[PSIK_BLK], s_c[PSIK_BLK], s_dk[PSIK_BLK];
+    psik_flag bad[PSIK_BLK];
+    size_t i0;
+    if (fn == NULL) {
+        for (i0 = 0; i0 < count; i0++) {
+            double a, b, c, d;
+            redo(m, h[i0], &a, &b, &c, &d);
+            if (theta) theta[i0] = a;
+            if (k) k[i0] = b;
+            if (capacity) capacity[i0] = c;
+            if (dk_dh) dk_dh[i0] = d;
+        }
+        return;
+    }
+    for (i0 = 0; i0 < count; i0 += PSIK_BLK) {
+        int cnt = count - i0 < PSIK_BLK ? (int)(count - i0) : PSIK_BLK, i;
+        double *th = theta ? theta + i0 : s_th;
+        double *kk = k ? k + i0 : s_k;
+        double *cc = capacity ? capacity + i0 : s_c;
+        double *dk = dk_dh ? dk_dh + i0 : s_dk;
+        unsigned any = 0;
+        fn(m, coef, cnt, h + i0, th, kk, cc, dk, bad);
+        for (i = 0; i < cnt; i++)   /* a reduction the compiler vectorises */
+            any |= bad[i];
+        if (any)
+            for (i = 0; i < cnt; i++)
+                if (bad[i])
+                    redo(m, h[i0 + i], th + i, kk + i, cc + i, dk + i);
+    }
+}
+
+PSIK_HIDDEN void psik__blocks_run_range(const psik_model *m, const void *coef,
+                                        psik_block_range_t *fn, double h_lo, double h_hi,
+                                        size_t count, const double *h, double *theta,
+                                        double *k, double *capacity, double *dk_dh)
+{
+    double s_th[PSIK_BLK], s_k[PSIK_BLK], s_c[PSIK_BLK], s_dk[PSIK_BLK];
+    size_t i0;
+    for (i0 = 0; i0 < count; i0 += PSIK_BLK) {
+        int cnt = count - i0 < PSIK_BLK ? (int)(count - i0) : PSIK_BLK, i;
+        const double *hb = h + i0;
+        double *th = theta ? theta + i0 : s_th;
+        double *kk = k ? k + i0 : s_k;
+        double *cc = capacity ? capacity + i0 : s_c;
+        double *dk = dk_dh ? dk_dh + i0 : s_dk;
+        if (fn(m, coef, h_lo, h_hi, cnt, hb, th, kk, cc, dk))
+            for (i = 0; i < cnt; i++)
+                if (!(hb[i] > h_lo && hb[i] < h_hi))
+                    redo(m, hb[i], th + i, kk + i, cc + i, dk + i);
+    }
+}
