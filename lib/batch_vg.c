@@ -22,8 +22,7 @@
  * scalar path's values. The clamps are eval.c's, as selects.
  *
  * Instruction sets (isa.h): this file is compiled once per variant
- * (portable, SSE4.2, AVX2 with FMA, AVX-512 with FMA on 256-bit vectors:
- * 512-bit ones measured 15% slower on this machine) and psik__isa() picks
+ * (portable, SSE4.2, AVX2 with FMA, AVX-512 with FMA) and psik__isa() picks
  * one per call, for the batch loop and for the single point psik_eval
  * uses (the widest variant's scalar code). The FMA variants use the
  * table-free exp of fastmath.h, so their bits differ from the portable
