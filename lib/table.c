@@ -34,6 +34,7 @@
  * returns psik_eval's values, so a table is never less safe than the model.
  */
 #include "psik_internal.h"
+#include "fast_table.h"
 #include "fastmath.h"
 
 #include <float.h>
@@ -167,14 +168,6 @@ static void cubic(double f0, double f1, double d0, double d1, double dx, double 
     c[3] = m0 + m1 - 2.0 * df;
 }
 
-/* The constants an evaluation reads, copied out of the table so that the
- * compiler knows the output stores cannot change them. */
-typedef struct tb_par {
-    const double *coef;
-    uint64_t e0, lg, nint;
-    double fn, tr, ts, dts, ks;   /* fn = N */
-} tb_par;
-
 static tb_par tb_par_of(const struct psik_table *t)
 {
     tb_par p;
@@ -187,41 +180,9 @@ static tb_par tb_par_of(const struct psik_table *t)
     p.ts = t->ts;
     p.dts = t->dts;
     p.ks = t->ks;
+    p.h_dry = t->h_dry;
+    p.h_wet = t->h_wet;
     return p;
-}
-
-/* The interpolated state at a head inside the table; the same arithmetic
- * for psik_table_eval and the batch loop. From the bits of s = -h: the
- * octave (exponent), the interval i (top lg bits of the significand) and
- * f in [0, 1) (the rest, exactly); no log, no conversion instruction. */
-PSIK_FM void interp(const tb_par *t, double h, double *th, double *kk, double *cc, double *dk)
-{
-    double s = -h;
-    uint64_t b = psik__fm_bits(s), eb = b >> 52, man = b & 0xfffffffffffffULL;
-    uint64_t q = ((eb - t->e0) << t->lg) + (man >> (52 - t->lg));
-    uint64_t rest = (man << t->lg) & 0xfffffffffffffULL;
-    double f = psik__fm_double(0x3ff0000000000000ULL | rest) - 1.0;
-    double scale = psik__fm_double((2046u - eb) << 52) * t->fn;   /* N 2^-e */
-    double v, dv, lk, dlk, k, se, vt;
-    double c0, c1, c2, c3, c4, c5, c6, c7;
-    const double *c = t->coef;
-    q = q < t->nint ? q : t->nint - 1;     /* out-of-range lanes: any valid row */
-    q *= 8;
-    c0 = c[q]; c1 = c[q + 1]; c2 = c[q + 2]; c3 = c[q + 3];
-    c4 = c[q + 4]; c5 = c[q + 5]; c6 = c[q + 6]; c7 = c[q + 7];
-    v = c0 + f * (c1 + f * (c2 + f * c3));
-    dv = c1 + f * (2.0 * c2 + f * (3.0 * c3));
-    lk = c4 + f * (c5 + f * (c6 + f * c7));
-    dlk = c5 + f * (2.0 * c6 + f * (3.0 * c7));
-    se = psik__fm_exp(v);
-    k = psik__fm_exp(lk);
-    se = psik__fm_sel(se > 1.0, 1.0, se);
-    vt = t->tr + t->dts * se;
-    *th = psik__fm_sel(vt > t->ts, t->ts, vt);
-    *kk = psik__fm_sel(k > t->ks, t->ks, k);
-    /* d/dh = -(d/ds) = -(N 2^-e) d/df */
-    *cc = psik__fm_sel(dv < 0.0, -dv * scale * (t->dts * se), 0.0);
-    *dk = psik__fm_sel(dlk < 0.0, -dlk * scale * k, 0.0);
 }
 
 static int inside(const struct psik_table *t, double h)
@@ -330,7 +291,7 @@ PSIK_API psik_status psik_table_build(const psik_model *m, double h_dry, double 
             psik_state st;
             if (!inside(t, h))
                 continue;
-            interp(&tp, h, &th, &kk, &cc, &dk);
+            psik__table_point(&tp, h, &th, &kk, &cc, &dk);
             psik_eval(m, h, &st);
             e = fabs(th - st.theta) / st.theta;
             if (e > eth) eth = e;
@@ -370,7 +331,7 @@ PSIK_API void psik_table_eval(const psik_table *t, double h, psik_state *out)
         return;
     }
     tp = tb_par_of(t);
-    interp(&tp, h, &th, &kk, &cc, &dk);
+    psik__table_point(&tp, h, &th, &kk, &cc, &dk);
     out->theta = th;
     out->se = (th - t->tr) / t->dts;
     out->k = kk;
@@ -379,39 +340,12 @@ PSIK_API void psik_table_eval(const psik_table *t, double h, psik_state *out)
     out->dk_dh = dk;
 }
 
-#define TB_ARGS const tb_par *tq, size_t n, const double *restrict h, \
-    double *restrict th, double *restrict kk, double *restrict cc, double *restrict dk
-PSIK_FM void tb_body(TB_ARGS)
-{
-    const tb_par t = *tq;
-    size_t i;
-    for (i = 0; i < n; i++) {
-        double a, b, c, d;
-        interp(&t, h[i], &a, &b, &c, &d);
-        th[i] = a;
-        kk[i] = b;
-        cc[i] = c;
-        dk[i] = d;
-    }
-}
-static void tb_base(TB_ARGS) { tb_body(tq, n, h, th, kk, cc, dk); }
-#if defined(__x86_64__) && defined(__GNUC__) && !defined(PSIK_NO_DISPATCH) && \
-    !defined(PSIK_SINGLE)
-__attribute__((target("avx2"))) static void tb_avx2(TB_ARGS) { tb_body(tq, n, h, th, kk, cc, dk); }
-__attribute__((target("sse4.2"))) static void tb_sse42(TB_ARGS) { tb_body(tq, n, h, th, kk, cc, dk); }
-#  define TB_PICK() (__builtin_cpu_supports("avx2") ? tb_avx2 : \
-                     __builtin_cpu_supports("sse4.2") ? tb_sse42 : tb_base)
-#else
-#  define TB_PICK() tb_base
-#endif
-
 PSIK_API void psik_table_eval_batch(const psik_table *t, size_t count, const double *h,
                                     double *theta, double *k, double *capacity,
                                     double *dk_dh)
 {
     enum { B = 256 };
     double s_th[B], s_k[B], s_c[B], s_dk[B];
-    void (*fn)(TB_ARGS) = TB_PICK();
     size_t i0;
     tb_par tp;
     if (!valid(t) || h == NULL) {
@@ -425,7 +359,8 @@ PSIK_API void psik_table_eval_batch(const psik_table *t, size_t count, const dou
         double *kk = k ? k + i0 : s_k;
         double *cc = capacity ? capacity + i0 : s_c;
         double *dk = dk_dh ? dk_dh + i0 : s_dk;
-        fn(&tp, n, h + i0, th, kk, cc, dk);
+        if (!psik__table_block(&tp, n, h + i0, th, kk, cc, dk))
+            continue;
         for (i = 0; i < n; i++) {
             if (!inside(t, h[i0 + i])) {
                 psik_state st;
