@@ -114,7 +114,13 @@ deps:
 	@sh tests/deps.sh
 
 .PHONY: test-build
-test-build: $(T_BIN) $(T_ASAN) $(B)/tests/cxx_header $(B)/tests/c11_header $(SINGLE)
+test-build: $(T_BIN) $(T_ASAN) $(B)/tests/cxx_header $(B)/tests/c11_header $(SINGLE) \
+            $(if $(ISA_X86),$(B)/tests/test_fastmath_fma)
+
+# fastmath.h as the FMA variants compile it (table-free exp)
+$(B)/tests/test_fastmath_fma: tests/unit/test_fastmath.c lib/fastmath.h lib/fastmath_tables.h
+	@mkdir -p $(dir $@)
+	$(CC) $(CFLAGS_T) $(FAST_FLAGS) $(ISA_avx2) -o $@ $< -lcmocka $(LDLIBS)
 
 $(B)/tests/%: tests/unit/%.c $(T_HELP) $(LIB_A) tests/unit/*.h
 	@mkdir -p $(dir $@)
