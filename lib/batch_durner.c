@@ -44,6 +44,7 @@
  * so it gives the block loop's bits at about the cost of one mode.
  */
 #include "fast_durner.h"
+#include "fast_block.h"
 #include "fastmath.h"
 #include "isa.h"
 
@@ -52,19 +53,6 @@
 
 #define DN_BLK 256
 #define DN_TINY 0x1p-960
-
-/* eval.c's clamps, as selects. */
-PSIK_FM double dn_pos(double v)
-{
-    v = psik__fm_sel(v >= 0.0, v, 0.0);
-    return psik__fm_sel(v > DBL_MAX, DBL_MAX, v);
-}
-
-PSIK_FM double dn_01(double v)
-{
-    v = psik__fm_sel(v > 0.0, v, 0.0);
-    return psik__fm_sel(v > 1.0, 1.0, v);
-}
 
 /* log(u + e) as hi + lo, u > 0 normal, |e| <= ulp(u): log(u) + e/u. */
 PSIK_FM double dn_log_sum(double u, double e, double *lo)
@@ -322,15 +310,15 @@ PSIK_FM void dn_block_body(const dn_blk *bk, int nm, int half, int cnt,
     for (i = 0; i < cnt; i++) {
         double hi = h[i], se, kr, dse, dkr, t;
         int ok = dn_core(bk->c, NULL, nm, half, -hi, &se, &kr, &dse, &dkr);
-        se = dn_01(se);
-        kr = dn_01(kr);
-        dse = dn_pos(dse);
-        dkr = dn_pos(dkr);
+        se = psik__fb_01(se);
+        kr = psik__fb_01(kr);
+        dse = psik__fb_pos(dse);
+        dkr = psik__fb_pos(dkr);
         t = tr + dts * se;
         th[i] = psik__fm_sel(t > ts, ts, t);
         kk[i] = ks * kr;
-        cc[i] = dn_pos(dts * dse);
-        dk[i] = dn_pos(ks * dkr);
+        cc[i] = psik__fb_pos(dts * dse);
+        dk[i] = psik__fb_pos(ks * dkr);
         bad[i] = psik__fm_sel(!(hi < h_sat) | !ok, 1.0, 0.0);
     }
 }

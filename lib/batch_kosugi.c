@@ -45,6 +45,7 @@
 #pragma GCC target("tune=icelake-server,prefer-vector-width=512")
 #endif
 
+#include "fast_block.h"
 #include "fastmath.h"
 #include "fastmath_normal.h"
 #include "isa.h"
@@ -62,19 +63,6 @@
 #define KB_LSM_LO 9
 #define KB_RS_HI  10
 #define KB_RS_LO  11
-
-/* eval.c's clamps, as selects. */
-PSIK_FM double kb_pos(double v)
-{
-    v = psik__fm_sel(v >= 0.0, v, 0.0);
-    return psik__fm_sel(v > DBL_MAX, DBL_MAX, v);
-}
-
-PSIK_FM double kb_01(double v)
-{
-    v = psik__fm_sel(v > 0.0, v, 0.0);
-    return psik__fm_sel(v > 1.0, 1.0, v);
-}
 
 /* Q(v), ln Q(v) = *lh + *ll, H(v) and phi(v) at v = vh + vl,
  * -30 <= v <= 38 (garbage elsewhere). */
@@ -223,15 +211,15 @@ PSIK_FM void kb_block_body(const kb_blk *bk, int half, int cnt, const double *re
     for (i = 0; i < cnt; i++) {
         double hi = h[i], se, kr, dse, dkr, t;
         int se_ok, ok = kb_core(a, -hi, half, &se, &kr, &dse, &dkr, &se_ok);
-        se = kb_01(se);
-        kr = kb_01(kr);
-        dse = kb_pos(dse);
-        dkr = kb_pos(dkr);
+        se = psik__fb_01(se);
+        kr = psik__fb_01(kr);
+        dse = psik__fb_pos(dse);
+        dkr = psik__fb_pos(dkr);
         t = tr + dts * se;
         th[i] = psik__fm_sel(t > ts, ts, t);
         kk[i] = ks * kr;
-        cc[i] = kb_pos(dts * dse);
-        dk[i] = kb_pos(ks * dkr);
+        cc[i] = psik__fb_pos(dts * dse);
+        dk[i] = psik__fb_pos(ks * dkr);
         bad[i] = (uint64_t)(!(hi < h_sat) | !ok);
     }
 }

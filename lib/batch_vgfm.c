@@ -44,6 +44,7 @@
  * differ by rounding, tests/unit/test_vgfm.c); the per-call tables use
  * + - * / only.
  */
+#include "fast_block.h"
 #include "fastmath.h"
 #include "isa.h"
 
@@ -101,18 +102,6 @@ static void vgfm_setup(const double *cst, vgfm_k *K, int tables)
         K->pc1 *= fabs(K->c1[j]);
         K->pc2 *= fabs(K->c2[j]);
     }
-}
-
-PSIK_FM double vgfm_pos(double v)
-{
-    v = psik__fm_sel(v >= 0.0, v, 0.0);
-    return psik__fm_sel(v > DBL_MAX, DBL_MAX, v);
-}
-
-PSIK_FM double vgfm_01(double v)
-{
-    v = psik__fm_sel(v > 0.0, v, 0.0);
-    return psik__fm_sel(v > 1.0, 1.0, v);
 }
 
 #if defined(__clang__)
@@ -255,15 +244,15 @@ PSIK_FM void vgfm_block_body(const vgfm_blk *bk, int half, int cnt,
     for (i = 0; i < cnt; i++) {
         double hi = h[i], se, kr, dse, dkr, t;
         int ok = vgfm_core(K, -hi, half, 1, &se, &kr, &dse, &dkr);
-        se = vgfm_01(se);
-        kr = vgfm_01(kr);
-        dse = vgfm_pos(dse);
-        dkr = vgfm_pos(dkr);
+        se = psik__fb_01(se);
+        kr = psik__fb_01(kr);
+        dse = psik__fb_pos(dse);
+        dkr = psik__fb_pos(dkr);
         t = tr + dts * se;
         th[i] = psik__fm_sel(t > ts, ts, t);
         kk[i] = ks * kr;
-        cc[i] = vgfm_pos(dts * dse);
-        dk[i] = vgfm_pos(ks * dkr);
+        cc[i] = psik__fb_pos(dts * dse);
+        dk[i] = psik__fb_pos(ks * dkr);
         bad[i] = (unsigned char)(!(hi < h_sat) | !ok);
     }
 }
