@@ -126,9 +126,18 @@ $(B)/tests/%: tests/unit/%.c $(T_HELP) $(LIB_A) tests/unit/*.h
 	@mkdir -p $(dir $@)
 	$(CC) $(CFLAGS_T) -o $@ $< $(T_HELP) $(LIB_A) -lcmocka $(LDLIBS)
 
-$(B)/asan/%: tests/unit/%.c $(T_HELP) $(LIB_SRC) tests/unit/*.h include/psik.h lib/psik_internal.h
+# The sanitizer builds compile the library sources once (portable
+# variant only: no per-instruction-set objects) and link each test.
+ASAN_OBJ := $(LIB_SRC:lib/%.c=$(B)/asan/obj/%.o)
+$(B)/asan/obj/%.o: lib/%.c
 	@mkdir -p $(dir $@)
-	$(CC) $(CFLAGS_T) -O1 $(SAN) -Ilib -o $@ $< $(T_HELP) $(LIB_SRC) -lcmocka $(LDLIBS)
+	$(CC) $(CFLAGS_T) -O1 $(SAN) -MMD -MP -c $< -o $@
+-include $(ASAN_OBJ:.o=.d)
+.SECONDARY: $(ASAN_OBJ)
+
+$(B)/asan/%: tests/unit/%.c $(T_HELP) $(ASAN_OBJ) tests/unit/*.h include/psik.h lib/psik_internal.h
+	@mkdir -p $(dir $@)
+	$(CC) $(CFLAGS_T) -O1 $(SAN) -Ilib -o $@ $< $(T_HELP) $(ASAN_OBJ) -lcmocka $(LDLIBS)
 
 # The public header compiles as C++ and as C11 (DESIGN.md).
 $(B)/tests/cxx_header: tests/header/header_cxx.cpp include/psik.h $(LIB_A)
