@@ -17,9 +17,24 @@ static int isa_best(void)
     return PSIK_ISA_ID_BASE;
 }
 
+#if PSIK_ISA_HAVE
+/* The processor does not change while the program runs: ask it once, when
+ * the library is loaded (before any thread of the program's can call in),
+ * rather than per point. */
+static int isa_found = -1;
+__attribute__((constructor)) static void isa_probe(void)
+{
+    isa_found = isa_best();
+}
+#endif
+
 PSIK_HIDDEN int psik__isa(void)
 {
+#if PSIK_ISA_HAVE
+    int b = isa_found >= 0 ? isa_found : isa_best();
+#else
     int b = isa_best();
+#endif
     return b < isa_cap ? b : isa_cap;
 }
 
