@@ -71,7 +71,7 @@ ISA_X86  := $(if $(findstring x86_64,$(shell $(CC) -dumpmachine)),1)
 ISA_LIST := $(if $(ISA_X86),sse42 avx2 avx512)
 ISA_sse42  := -msse4.2
 ISA_avx2   := -mavx2 -mfma
-ISA_avx512 := -mavx512f -mavx512dq -mavx512vl -mavx2 -mfma -mprefer-vector-width=512 -mtune=icelake-server
+ISA_avx512 := -mavx512f -mavx512dq -mavx512vl -mavx512bw -mavx2 -mfma -mprefer-vector-width=512 -mtune=icelake-server
 BATCH_SRC := $(sort $(wildcard lib/batch_*.c))
 ISA_OBJ  := $(foreach v,$(ISA_LIST),$(BATCH_SRC:lib/%.c=$(B)/obj/%-$(v).o))
 LIB_OBJ  += $(ISA_OBJ)

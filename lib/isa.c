@@ -7,7 +7,8 @@ static int isa_best(void)
 {
 #if PSIK_ISA_HAVE
     if (__builtin_cpu_supports("avx512f") && __builtin_cpu_supports("avx512dq") &&
-        __builtin_cpu_supports("avx512vl") && __builtin_cpu_supports("fma"))
+        __builtin_cpu_supports("avx512vl") && __builtin_cpu_supports("avx512bw") &&
+        __builtin_cpu_supports("fma"))
         return PSIK_ISA_ID_AVX512;
     if (__builtin_cpu_supports("avx2") && __builtin_cpu_supports("fma"))
         return PSIK_ISA_ID_AVX2;

@@ -4,7 +4,9 @@
  * The Makefile compiles every lib/batch_*.c once as the ordinary object and,
  * on x86-64, again per variant with PSIK_ISA_NAME set and that variant's
  * flags (sse42: -msse4.2; avx2: -mavx2 -mfma; avx512: -mavx512f -mavx512dq
- * -mavx512vl -mfma, 512-bit vectors), and defines PSIK_ISA_VARIANTS for the
+ * -mavx512vl -mavx512bw -mfma, 512-bit vectors; BW for the byte flags
+ * beside the doubles, without which GCC keeps 256-bit vectors), and
+ * defines PSIK_ISA_VARIANTS for the
  * ordinary objects so that they know the variants exist. A kernel source
  * names its per-variant functions PSIK_ISA_FN(name) (name_base, name_avx2,
  * ...) and keeps its dispatcher inside #if PSIK_ISA_BASE. Builds that
