@@ -51,7 +51,6 @@
 #include <float.h>
 #include <math.h>
 
-#define DN_BLK 256
 #define DN_TINY 0x1p-960
 
 /* log(u + e) as hi + lo, u > 0 normal, |e| <= ulp(u): log(u) + e/u. */
@@ -303,7 +302,7 @@ typedef struct dn_blk {
 PSIK_FM void dn_block_body(const dn_blk *bk, int nm, int half, int cnt,
                            const double *restrict h, double *restrict th,
                            double *restrict kk, double *restrict cc,
-                           double *restrict dk, double *restrict bad)
+                           double *restrict dk, uint64_t *restrict bad)
 {
     const double h_sat = bk->h_sat, tr = bk->tr, dts = bk->dts, ts = bk->ts, ks = bk->ks;
     int i;
@@ -319,15 +318,16 @@ PSIK_FM void dn_block_body(const dn_blk *bk, int nm, int half, int cnt,
         kk[i] = ks * kr;
         cc[i] = psik__fb_pos(dts * dse);
         dk[i] = psik__fb_pos(ks * dkr);
-        bad[i] = psik__fm_sel(!(hi < h_sat) | !ok, 1.0, 0.0);
+        bad[i] = (uint64_t)(!(hi < h_sat) | !ok);
     }
 }
 
-#define DN_BLOCK_ARGS const dn_blk *bk, int cnt, const double *restrict h, \
-    double *restrict th, double *restrict kk, double *restrict cc, \
-    double *restrict dk, double *restrict bad
+/* psik_block_t: coef is the dn_blk, the flags uint64_t (fast_block.h) */
+#define DN_BLOCK_ARGS const psik_model *mo, const void *coef, int cnt, \
+    const double *restrict h, double *restrict th, double *restrict kk, \
+    double *restrict cc, double *restrict dk, void *restrict bad
 
-typedef void (*dn_block_fn)(DN_BLOCK_ARGS);
+typedef psik_block_fn dn_block_fn;
 
 /* The AVX-512 variant's block loops on 512-bit vectors (measured faster
  * here than 256-bit ones: the loop is long and compute-bound). */
@@ -339,13 +339,13 @@ typedef void (*dn_block_fn)(DN_BLOCK_ARGS);
 
 #define DN_VARIANTS(suffix)                                                           \
     DN_WIDE static void dn2_half_##suffix(DN_BLOCK_ARGS)                              \
-    { dn_block_body(bk, 2, 1, cnt, h, th, kk, cc, dk, bad); }                         \
+    { (void)mo; dn_block_body((const dn_blk *)coef, 2, 1, cnt, h, th, kk, cc, dk, (uint64_t *)bad); }                         \
     DN_WIDE static void dn2_any_##suffix(DN_BLOCK_ARGS)                               \
-    { dn_block_body(bk, 2, 0, cnt, h, th, kk, cc, dk, bad); }                         \
+    { (void)mo; dn_block_body((const dn_blk *)coef, 2, 0, cnt, h, th, kk, cc, dk, (uint64_t *)bad); }                         \
     DN_WIDE static void dn3_half_##suffix(DN_BLOCK_ARGS)                              \
-    { dn_block_body(bk, 3, 1, cnt, h, th, kk, cc, dk, bad); }                         \
+    { (void)mo; dn_block_body((const dn_blk *)coef, 3, 1, cnt, h, th, kk, cc, dk, (uint64_t *)bad); }                         \
     DN_WIDE static void dn3_any_##suffix(DN_BLOCK_ARGS)                               \
-    { dn_block_body(bk, 3, 0, cnt, h, th, kk, cc, dk, bad); }                         \
+    { (void)mo; dn_block_body((const dn_blk *)coef, 3, 0, cnt, h, th, kk, cc, dk, (uint64_t *)bad); }                         \
     static dn_block_fn dn_pick_##suffix(const psik_durc *c)                           \
     {                                                                                 \
         if (c->nm == 2) return c->l == 0.5 ? dn2_half_##suffix : dn2_any_##suffix;    \
@@ -403,34 +403,14 @@ PSIK_HIDDEN void psik__dur_batch(const psik_model *m, const psik_durc *c, size_t
                                  const double *h, double *theta, double *k,
                                  double *capacity, double *dk_dh)
 {
-    double s_th[DN_BLK], s_k[DN_BLK], s_c[DN_BLK], s_dk[DN_BLK];
-    double bad[DN_BLK];
     dn_blk bk;
     dn_block_fn fn = dn_pick(c);
-    size_t i0;
     bk.c = c;
     bk.h_sat = m->h_sat;
     bk.tr = m->theta_r;
     bk.ts = m->theta_s;
     bk.dts = m->theta_s - m->theta_r;
     bk.ks = m->ks;
-    for (i0 = 0; i0 < count; i0 += DN_BLK) {
-        int cnt = count - i0 < DN_BLK ? (int)(count - i0) : DN_BLK, i;
-        double *th = theta ? theta + i0 : s_th;
-        double *kk = k ? k + i0 : s_k;
-        double *cc = capacity ? capacity + i0 : s_c;
-        double *dk = dk_dh ? dk_dh + i0 : s_dk;
-        fn(&bk, cnt, h + i0, th, kk, cc, dk, bad);
-        for (i = 0; i < cnt; i++) {
-            if (bad[i] != 0.0) {
-                psik_state st;
-                psik_eval(m, h[i0 + i], &st);
-                th[i] = st.theta;
-                kk[i] = st.k;
-                cc[i] = st.capacity;
-                dk[i] = st.dk_dh;
-            }
-        }
-    }
+    psik__blocks_run(m, &bk, fn, sizeof(uint64_t), count, h, theta, k, capacity, dk_dh);
 }
 #endif /* PSIK_ISA_BASE */

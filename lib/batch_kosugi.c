@@ -53,7 +53,6 @@
 #include <float.h>
 #include <math.h>
 
-#define KB_BLK 256
 
 /* kosugi.c's aux layout (kos_prepare). */
 #define KB_SIG    1
@@ -224,18 +223,19 @@ PSIK_FM void kb_block_body(const kb_blk *bk, int half, int cnt, const double *re
     }
 }
 
-#define KB_BLOCK_ARGS const kb_blk *bk, int cnt, const double *restrict h, \
-    double *restrict th, double *restrict kk, double *restrict cc, \
-    double *restrict dk, uint64_t *restrict bad
-typedef void (*kb_block_fn)(KB_BLOCK_ARGS);
+/* psik_block_t: coef is the kb_blk, the flags uint64_t (fast_block.h) */
+#define KB_BLOCK_ARGS const psik_model *mo, const void *coef, int cnt, \
+    const double *restrict h, double *restrict th, double *restrict kk, \
+    double *restrict cc, double *restrict dk, void *restrict bad
+typedef psik_block_fn kb_block_fn;
 
 /* The two loops of this variant, kb_half_<isa> and kb_any_<isa> (named
  * through a macro, as the single-header generator reads static names). */
 #define KB_VARIANTS(suffix)                                                           \
     static void kb_half_##suffix(KB_BLOCK_ARGS)                                       \
-    { kb_block_body(bk, 1, cnt, h, th, kk, cc, dk, bad); }                            \
+    { (void)mo; kb_block_body((const kb_blk *)coef, 1, cnt, h, th, kk, cc, dk, (uint64_t *)bad); }                            \
     static void kb_any_##suffix(KB_BLOCK_ARGS)                                        \
-    { kb_block_body(bk, 0, cnt, h, th, kk, cc, dk, bad); }
+    { (void)mo; kb_block_body((const kb_blk *)coef, 0, cnt, h, th, kk, cc, dk, (uint64_t *)bad); }
 #define KB_VARIANTS_OF(suffix) KB_VARIANTS(suffix)
 KB_VARIANTS_OF(PSIK_ISA_NAME)
 
@@ -286,34 +286,15 @@ PSIK_HIDDEN void psik__kos_batch(const psik_model *m, size_t count, const double
                                  double *theta, double *k, double *capacity,
                                  double *dk_dh)
 {
-    double s_th[KB_BLK], s_k[KB_BLK], s_c[KB_BLK], s_dk[KB_BLK];
-    uint64_t bad[KB_BLK];   /* as wide as a double: one vector per lane group */
     kb_blk bk;
     kb_block_fn fn = kb_pick(m->aux);
-    size_t i0;
     bk.a = m->aux;
     bk.h_sat = m->h_sat;
     bk.tr = m->theta_r;
     bk.ts = m->theta_s;
     bk.dts = m->theta_s - m->theta_r;
     bk.ks = m->ks;
-    for (i0 = 0; i0 < count; i0 += KB_BLK) {
-        int cnt = count - i0 < KB_BLK ? (int)(count - i0) : KB_BLK, i;
-        double *th = theta ? theta + i0 : s_th;
-        double *kk = k ? k + i0 : s_k;
-        double *cc = capacity ? capacity + i0 : s_c;
-        double *dk = dk_dh ? dk_dh + i0 : s_dk;
-        fn(&bk, cnt, h + i0, th, kk, cc, dk, bad);
-        for (i = 0; i < cnt; i++) {
-            if (bad[i]) {
-                psik_state st;
-                psik_eval(m, h[i0 + i], &st);
-                th[i] = st.theta;
-                kk[i] = st.k;
-                cc[i] = st.capacity;
-                dk[i] = st.dk_dh;
-            }
-        }
-    }
+    /* flags as wide as a double: one vector per lane group */
+    psik__blocks_run(m, &bk, fn, sizeof(uint64_t), count, h, theta, k, capacity, dk_dh);
 }
 #endif /* PSIK_ISA_BASE */

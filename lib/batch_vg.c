@@ -165,7 +165,7 @@ PSIK_HIDDEN int PSIK_ISA_FN(psik__vg_point)(const psik_vgc *c, double s, psik_po
 PSIK_FM void vg_block_body(const psik_model *mo, const psik_vgc *c, int half, int model,
                            int cnt, const double *restrict h, double *restrict th,
                            double *restrict kk, double *restrict cc,
-                           double *restrict dk, psik_flag *restrict bad)
+                           double *restrict dk, unsigned char *restrict bad)
 {
     const double h_sat = mo->h_sat, dts = mo->theta_s - mo->theta_r, ks = mo->ks;
     int i;
@@ -182,28 +182,28 @@ PSIK_FM void vg_block_body(const psik_model *mo, const psik_vgc *c, int half, in
         kk[i] = ks * kr;
         cc[i] = VG_PURE(half, model) ? dts * dse : psik__fb_pos(dts * dse);
         dk[i] = psik__fb_pos(ks * dkr);
-        bad[i] = (psik_flag)(!(hi < h_sat) | !ok);
+        bad[i] = (unsigned char)(!(hi < h_sat) | !ok);
     }
 }
 
 #define VG_BLOCK_ARGS const psik_model *mo, const void *coef, int cnt, \
     const double *restrict h, double *restrict th, double *restrict kk, \
-    double *restrict cc, double *restrict dk, psik_flag *restrict bad
+    double *restrict cc, double *restrict dk, void *restrict bad
 
 
 typedef psik_block_fn vg_block_fn;
 
 #define VG_VARIANTS(suffix, attr)                                                     \
     attr static void vgm_half_##suffix(VG_BLOCK_ARGS)                                 \
-    { vg_block_body(mo, (const psik_vgc *)coef, 1, PSIK_VGC_MUALEM, cnt, h, th, kk, cc, dk, bad); } \
+    { vg_block_body(mo, (const psik_vgc *)coef, 1, PSIK_VGC_MUALEM, cnt, h, th, kk, cc, dk, (unsigned char *)bad); } \
     attr static void vgm_any_##suffix(VG_BLOCK_ARGS)                                  \
-    { vg_block_body(mo, (const psik_vgc *)coef, 0, PSIK_VGC_MUALEM, cnt, h, th, kk, cc, dk, bad); } \
+    { vg_block_body(mo, (const psik_vgc *)coef, 0, PSIK_VGC_MUALEM, cnt, h, th, kk, cc, dk, (unsigned char *)bad); } \
     attr static void vgae_half_##suffix(VG_BLOCK_ARGS)                                \
-    { vg_block_body(mo, (const psik_vgc *)coef, 1, PSIK_VGC_MUALEM_AE, cnt, h, th, kk, cc, dk, bad); } \
+    { vg_block_body(mo, (const psik_vgc *)coef, 1, PSIK_VGC_MUALEM_AE, cnt, h, th, kk, cc, dk, (unsigned char *)bad); } \
     attr static void vgae_any_##suffix(VG_BLOCK_ARGS)                                 \
-    { vg_block_body(mo, (const psik_vgc *)coef, 0, PSIK_VGC_MUALEM_AE, cnt, h, th, kk, cc, dk, bad); } \
+    { vg_block_body(mo, (const psik_vgc *)coef, 0, PSIK_VGC_MUALEM_AE, cnt, h, th, kk, cc, dk, (unsigned char *)bad); } \
     attr static void vgb_##suffix(VG_BLOCK_ARGS)                                      \
-    { vg_block_body(mo, (const psik_vgc *)coef, 1, PSIK_VGC_BURDINE, cnt, h, th, kk, cc, dk, bad); } \
+    { vg_block_body(mo, (const psik_vgc *)coef, 1, PSIK_VGC_BURDINE, cnt, h, th, kk, cc, dk, (unsigned char *)bad); } \
     static vg_block_fn pick_##suffix(const psik_vgc *c)                               \
     {                                                                                 \
         if (c->model == PSIK_VGC_BURDINE) return vgb_##suffix;                        \
@@ -261,7 +261,7 @@ PSIK_HIDDEN void psik__vg_batch(const psik_model *m, const psik_vgc *c, size_t c
                                 const double *h, double *theta, double *k,
                                 double *capacity, double *dk_dh)
 {
-    psik__blocks_run(m, c, pick(c), count, h, theta, k, capacity, dk_dh);
+    psik__blocks_run(m, c, pick(c), 1, count, h, theta, k, capacity, dk_dh);
 }
 
 #endif /* PSIK_ISA_BASE */

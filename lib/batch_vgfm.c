@@ -52,7 +52,6 @@
 #include <math.h>
 #include <stddef.h>
 
-#define VGFM_BLK 256
 #define VGFM_J 32          /* terms of the fraction; vgfm_core's w^J assumes 32 */
 
 /* The model constants, in the order vg.c fills them. */
@@ -257,19 +256,20 @@ PSIK_FM void vgfm_block_body(const vgfm_blk *bk, int half, int cnt,
     }
 }
 
-#define VGFM_BLOCK_ARGS const vgfm_blk *bk, int cnt, const double *restrict h, \
+/* psik_block_t: coef is the vgfm_blk, the flags unsigned char (fast_block.h) */
+#define VGFM_BLOCK_ARGS const psik_model *mo, const void *coef, int cnt, const double *restrict h, \
     double *restrict th, double *restrict kk, double *restrict cc,         \
-    double *restrict dk, unsigned char *restrict bad
+    double *restrict dk, void *restrict bad
 
-typedef void (*vgfm_block_fn)(VGFM_BLOCK_ARGS);
+typedef psik_block_fn vgfm_block_fn;
 
 /* The two loops of this variant, vgfm_half_<isa> and vgfm_any_<isa> (by a
  * macro, so that tools/mksingle.py sees plain names). */
 #define VGFM_VARIANTS(suffix)                                                   \
     static void vgfm_half_##suffix(VGFM_BLOCK_ARGS)                             \
-    { vgfm_block_body(bk, 1, cnt, h, th, kk, cc, dk, bad); }                    \
+    { (void)mo; vgfm_block_body((const vgfm_blk *)coef, 1, cnt, h, th, kk, cc, dk, (unsigned char *)bad); }                    \
     static void vgfm_any_##suffix(VGFM_BLOCK_ARGS)                              \
-    { vgfm_block_body(bk, 0, cnt, h, th, kk, cc, dk, bad); }
+    { (void)mo; vgfm_block_body((const vgfm_blk *)coef, 0, cnt, h, th, kk, cc, dk, (unsigned char *)bad); }
 #define VGFM_VARIANTS_OF(suffix) VGFM_VARIANTS(suffix)
 VGFM_VARIANTS_OF(PSIK_ISA_NAME)
 
@@ -327,12 +327,9 @@ PSIK_HIDDEN void psik__vgfm_batch(const psik_model *m, const double *cst, size_t
                                   const double *h, double *theta, double *k,
                                   double *capacity, double *dk_dh)
 {
-    double s_th[VGFM_BLK], s_k[VGFM_BLK], s_c[VGFM_BLK], s_dk[VGFM_BLK];
-    unsigned char bad[VGFM_BLK];
     vgfm_k K;
     vgfm_blk bk;
     vgfm_block_fn fn;
-    size_t i0;
     vgfm_setup(cst, &K, 1);
     fn = vgfm_choose(K.l);
     bk.K = &K;
@@ -341,23 +338,6 @@ PSIK_HIDDEN void psik__vgfm_batch(const psik_model *m, const double *cst, size_t
     bk.ts = m->theta_s;
     bk.dts = m->theta_s - m->theta_r;
     bk.ks = m->ks;
-    for (i0 = 0; i0 < count; i0 += VGFM_BLK) {
-        int cnt = count - i0 < VGFM_BLK ? (int)(count - i0) : VGFM_BLK, i;
-        double *th = theta ? theta + i0 : s_th;
-        double *kk = k ? k + i0 : s_k;
-        double *cc = capacity ? capacity + i0 : s_c;
-        double *dk = dk_dh ? dk_dh + i0 : s_dk;
-        fn(&bk, cnt, h + i0, th, kk, cc, dk, bad);
-        for (i = 0; i < cnt; i++) {
-            if (bad[i]) {
-                psik_state st;
-                psik_eval(m, h[i0 + i], &st);
-                th[i] = st.theta;
-                kk[i] = st.k;
-                cc[i] = st.capacity;
-                dk[i] = st.dk_dh;
-            }
-        }
-    }
+    psik__blocks_run(m, &bk, fn, 1, count, h, theta, k, capacity, dk_dh);
 }
 #endif /* PSIK_ISA_BASE */

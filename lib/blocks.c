@@ -11,12 +11,20 @@ static void redo(const psik_model *m, double h, double *th, double *kk, double *
     *dk = st.dk_dh;
 }
 
+/* Is flag i set, in flags of the width the kernel writes? */
+static int flag_at(const void *bad, size_t flag_bytes, int i)
+{
+    return flag_bytes == 1 ? ((const unsigned char *)bad)[i] != 0
+                           : ((const uint64_t *)bad)[i] != 0;
+}
+
 PSIK_HIDDEN void psik__blocks_run(const psik_model *m, const void *coef, psik_block_fn fn,
-                                  size_t count, const double *h, double *theta, double *k,
-                                  double *capacity, double *dk_dh)
+                                  size_t flag_bytes, size_t count, const double *h,
+                                  double *theta, double *k, double *capacity,
+                                  double *dk_dh)
 {
     double s_th[PSIK_BLK], s_k[PSIK_BLK], s_c[PSIK_BLK], s_dk[PSIK_BLK];
-    psik_flag bad[PSIK_BLK];
+    union { unsigned char c[PSIK_BLK]; uint64_t u[PSIK_BLK]; } bad;
     size_t i0;
     if (fn == NULL) {
         for (i0 = 0; i0 < count; i0++) {
@@ -35,13 +43,18 @@ PSIK_HIDDEN void psik__blocks_run(const psik_model *m, const void *coef, psik_bl
         double *kk = k ? k + i0 : s_k;
         double *cc = capacity ? capacity + i0 : s_c;
         double *dk = dk_dh ? dk_dh + i0 : s_dk;
-        unsigned any = 0;
-        fn(m, coef, cnt, h + i0, th, kk, cc, dk, bad);
-        for (i = 0; i < cnt; i++)   /* a reduction the compiler vectorises */
-            any |= bad[i];
+        uint64_t any = 0;
+        void *flags = flag_bytes == 1 ? (void *)bad.c : (void *)bad.u;
+        fn(m, coef, cnt, h + i0, th, kk, cc, dk, flags);
+        if (flag_bytes == 1)   /* reductions the compiler vectorises */
+            for (i = 0; i < cnt; i++)
+                any |= bad.c[i];
+        else
+            for (i = 0; i < cnt; i++)
+                any |= bad.u[i];
         if (any)
             for (i = 0; i < cnt; i++)
-                if (bad[i])
+                if (flag_at(flags, flag_bytes, i))
                     redo(m, h[i0 + i], th + i, kk + i, cc + i, dk + i);
     }
 }

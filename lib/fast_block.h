@@ -16,17 +16,14 @@
 
 #define PSIK_BLK 256
 
-#ifndef PSIK_FLAG_T
-#define PSIK_FLAG_T unsigned char
-#endif
-typedef PSIK_FLAG_T psik_flag;
 
-/* One block: cnt <= PSIK_BLK heads, every output written (none NULL),
- * bad[i] = 1.0 (a double, so that the loop keeps one vector width) where
- * psik_eval must redo head i, else 0.0. coef is the kernel's own. */
+/* One block: cnt <= PSIK_BLK heads, every output written (none NULL), and
+ * a flag per head in bad (unsigned char or uint64_t, as the kernel chose:
+ * the width that keeps its loop fastest), nonzero where psik_eval must redo
+ * head i. coef is the kernel's own. */
 typedef void psik_block_t(const psik_model *m, const void *coef, int cnt,
                           const double *h, double *th, double *kk, double *cc,
-                          double *dk, psik_flag *bad);
+                          double *dk, void *bad);
 typedef psik_block_t *psik_block_fn;
 
 /* A block whose lanes are good exactly for h_lo < h < h_hi (bounds the
@@ -39,10 +36,12 @@ typedef int psik_block_range_t(const psik_model *m, const void *coef, double h_l
                                double *kk, double *cc, double *dk);
 
 /* psik_eval_batch through blocks of fn (h != NULL, m valid): NULL outputs
- * go to scratch space; fn NULL means psik_eval head by head. */
+ * go to scratch space; fn NULL means psik_eval head by head. flag_bytes is
+ * the size of fn's flags: 1 (unsigned char) or 8 (uint64_t). */
 PSIK_HIDDEN void psik__blocks_run(const psik_model *m, const void *coef, psik_block_fn fn,
-                                  size_t count, const double *h, double *theta, double *k,
-                                  double *capacity, double *dk_dh);
+                                  size_t flag_bytes, size_t count, const double *h,
+                                  double *theta, double *k, double *capacity,
+                                  double *dk_dh);
 
 /* The same for a range block: heads outside (h_lo, h_hi), and NaN, go to
  * psik_eval. */
