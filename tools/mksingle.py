@@ -96,8 +96,14 @@ def local_names(code):
             if ids:
                 names.add(ids[-1])
         elif words[0] == 'typedef':
-            ids = [w for w in IDENT.findall(d.replace('{', ' ').replace('}', ' '))
-                   if w not in C_KEYWORDS]
+            d = d.replace('{', ' ').replace('}', ' ')
+            m = re.search(r'\(\s*\*\s*([A-Za-z_]\w*)\s*\)\s*\(', d)
+            if m:                       # typedef R (*name)(params)
+                names.add(m.group(1))
+                continue
+            if '(' in d:                # typedef R name(params): not a parameter
+                d = d.split('(', 1)[0]
+            ids = [w for w in IDENT.findall(d) if w not in C_KEYWORDS]
             if ids:
                 names.add(ids[-1])
     for m in re.finditer(r'\b(struct|union|enum)\s+([A-Za-z_]\w*)\s*\{', code):
