@@ -362,41 +362,21 @@ PSIK_HIDDEN dn_block_fn PSIK_ISA_FN(psik__dur_pick)(const psik_durc *c)
 }
 
 #if PSIK_ISA_BASE
-#if PSIK_ISA_HAVE
-PSIK_HIDDEN dn_block_fn psik__dur_pick_sse42(const psik_durc *c);
-PSIK_HIDDEN dn_block_fn psik__dur_pick_avx2(const psik_durc *c);
-PSIK_HIDDEN dn_block_fn psik__dur_pick_avx512(const psik_durc *c);
-PSIK_HIDDEN int psik__dur_point_sse42(const psik_durc *c, double s, psik_point *out);
-PSIK_HIDDEN int psik__dur_point_avx2(const psik_durc *c, double s, psik_point *out);
-PSIK_HIDDEN int psik__dur_point_avx512(const psik_durc *c, double s, psik_point *out);
-#endif
+typedef dn_block_fn dn_pick_t(const psik_durc *c);
+typedef int dn_point_t(const psik_durc *c, double s, psik_point *out);
+PSIK_ISA_SELECT(dn_pick_t, psik__dur_pick)
+PSIK_ISA_SELECT(dn_point_t, psik__dur_point)
 
 static dn_block_fn dn_pick(const psik_durc *c)
 {
-#if PSIK_ISA_HAVE
-    switch (psik__isa()) {
-    case PSIK_ISA_ID_AVX512: return psik__dur_pick_avx512(c);
-    case PSIK_ISA_ID_AVX2: return psik__dur_pick_avx2(c);
-    case PSIK_ISA_ID_SSE42: return psik__dur_pick_sse42(c);
-    default: break;
-    }
-#endif
-    return psik__dur_pick_base(c);
+    return psik__dur_pick_pick()(c);
 }
 
 /* The single point in the variant the batch loop uses (the variants may
  * round differently where fastmath.h uses fused multiply-adds). */
 PSIK_HIDDEN int psik__dur_point_fast(const psik_durc *c, double s, psik_point *out)
 {
-#if PSIK_ISA_HAVE
-    switch (psik__isa()) {
-    case PSIK_ISA_ID_AVX512: return psik__dur_point_avx512(c, s, out);
-    case PSIK_ISA_ID_AVX2: return psik__dur_point_avx2(c, s, out);
-    case PSIK_ISA_ID_SSE42: return psik__dur_point_sse42(c, s, out);
-    default: break;
-    }
-#endif
-    return psik__dur_point_base(c, s, out);
+    return psik__dur_point_pick()(c, s, out);
 }
 
 PSIK_HIDDEN void psik__dur_batch(const psik_model *m, const psik_durc *c, size_t count,

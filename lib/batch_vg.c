@@ -222,39 +222,19 @@ PSIK_HIDDEN vg_block_fn PSIK_ISA_FN(psik__vg_pick)(const psik_vgc *c)
 }
 
 #if PSIK_ISA_BASE
-#if PSIK_ISA_HAVE
-PSIK_HIDDEN vg_block_fn psik__vg_pick_sse42(const psik_vgc *c);
-PSIK_HIDDEN vg_block_fn psik__vg_pick_avx2(const psik_vgc *c);
-PSIK_HIDDEN vg_block_fn psik__vg_pick_avx512(const psik_vgc *c);
-PSIK_HIDDEN int psik__vg_point_sse42(const psik_vgc *c, double s, psik_point *out);
-PSIK_HIDDEN int psik__vg_point_avx2(const psik_vgc *c, double s, psik_point *out);
-PSIK_HIDDEN int psik__vg_point_avx512(const psik_vgc *c, double s, psik_point *out);
-#endif
+typedef vg_block_fn vg_pick_t(const psik_vgc *c);
+typedef int vg_point_t(const psik_vgc *c, double s, psik_point *out);
+PSIK_ISA_SELECT(vg_pick_t, psik__vg_pick)
+PSIK_ISA_SELECT(vg_point_t, psik__vg_point)
 
 static vg_block_fn pick(const psik_vgc *c)
 {
-#if PSIK_ISA_HAVE
-    switch (psik__isa()) {
-    case PSIK_ISA_ID_AVX512: return psik__vg_pick_avx512(c);
-    case PSIK_ISA_ID_AVX2: return psik__vg_pick_avx2(c);
-    case PSIK_ISA_ID_SSE42: return psik__vg_pick_sse42(c);
-    default: break;
-    }
-#endif
-    return psik__vg_pick_base(c);
+    return psik__vg_pick_pick()(c);
 }
 
 PSIK_HIDDEN int psik__vg_point_fast(const psik_vgc *c, double s, psik_point *out)
 {
-#if PSIK_ISA_HAVE
-    switch (psik__isa()) {
-    case PSIK_ISA_ID_AVX512: return psik__vg_point_avx512(c, s, out);
-    case PSIK_ISA_ID_AVX2: return psik__vg_point_avx2(c, s, out);
-    case PSIK_ISA_ID_SSE42: return psik__vg_point_sse42(c, s, out);
-    default: break;
-    }
-#endif
-    return psik__vg_point_base(c, s, out);
+    return psik__vg_point_pick()(c, s, out);
 }
 
 PSIK_HIDDEN void psik__vg_batch(const psik_model *m, const psik_vgc *c, size_t count,

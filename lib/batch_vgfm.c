@@ -280,26 +280,14 @@ PSIK_HIDDEN vgfm_block_fn PSIK_ISA_FN(psik__vgfm_pick)(double l)
 }
 
 #if PSIK_ISA_BASE
-#if PSIK_ISA_HAVE
-PSIK_HIDDEN vgfm_block_fn psik__vgfm_pick_sse42(double l);
-PSIK_HIDDEN vgfm_block_fn psik__vgfm_pick_avx2(double l);
-PSIK_HIDDEN vgfm_block_fn psik__vgfm_pick_avx512(double l);
-PSIK_HIDDEN int psik__vgfm_point_sse42(const double *cst, double s, psik_point *out);
-PSIK_HIDDEN int psik__vgfm_point_avx2(const double *cst, double s, psik_point *out);
-PSIK_HIDDEN int psik__vgfm_point_avx512(const double *cst, double s, psik_point *out);
-#endif
+typedef vgfm_block_fn vgfm_pick_t(double l);
+typedef int vgfm_point_t(const double *cst, double s, psik_point *out);
+PSIK_ISA_SELECT(vgfm_pick_t, psik__vgfm_pick)
+PSIK_ISA_SELECT(vgfm_point_t, psik__vgfm_point)
 
 static vgfm_block_fn vgfm_choose(double l)
 {
-#if PSIK_ISA_HAVE
-    switch (psik__isa()) {
-    case PSIK_ISA_ID_AVX512: return psik__vgfm_pick_avx512(l);
-    case PSIK_ISA_ID_AVX2: return psik__vgfm_pick_avx2(l);
-    case PSIK_ISA_ID_SSE42: return psik__vgfm_pick_sse42(l);
-    default: break;
-    }
-#endif
-    return psik__vgfm_pick_base(l);
+    return psik__vgfm_pick_pick()(l);
 }
 
 /* The point psik_eval uses (vg.c), in the variant the batch loop uses; 0
@@ -307,15 +295,7 @@ static vgfm_block_fn vgfm_choose(double l)
 PSIK_HIDDEN int psik__vgfm_point_fast(const double *cst, double s, psik_point *out);
 PSIK_HIDDEN int psik__vgfm_point_fast(const double *cst, double s, psik_point *out)
 {
-#if PSIK_ISA_HAVE
-    switch (psik__isa()) {
-    case PSIK_ISA_ID_AVX512: return psik__vgfm_point_avx512(cst, s, out);
-    case PSIK_ISA_ID_AVX2: return psik__vgfm_point_avx2(cst, s, out);
-    case PSIK_ISA_ID_SSE42: return psik__vgfm_point_sse42(cst, s, out);
-    default: break;
-    }
-#endif
-    return psik__vgfm_point_base(cst, s, out);
+    return psik__vgfm_point_pick()(cst, s, out);
 }
 
 /* psik_eval_batch for vg_free_m: block loop, then psik_eval for the
