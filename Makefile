@@ -56,7 +56,7 @@ $(B)/obj/%.o: lib/%.c include/psik.h lib/psik_internal.h
 # no errno from sqrt, and no contraction into fused multiply-adds, so the
 # scalar, SSE2, AVX2 and AVX-512 paths give the same bits (no -ffast-math).
 FAST_FLAGS := -O3 -fno-math-errno -ffp-contract=off
-FAST_OBJ := $(filter $(B)/obj/batch_%.o $(B)/obj/blocks.o $(B)/obj/table.o,$(LIB_OBJ))
+FAST_OBJ := $(filter $(B)/obj/batch_%.o $(B)/obj/point_%.o $(B)/obj/blocks.o $(B)/obj/table.o,$(LIB_OBJ))
 $(FAST_OBJ): CFLAGS_LIB += $(FAST_FLAGS)
 $(FAST_OBJ): lib/fastmath.h lib/fastmath_tables.h lib/fast_vg.h lib/isa.h lib/fast_block.h
 
@@ -72,7 +72,7 @@ ISA_LIST := $(if $(ISA_X86),sse42 avx2 avx512)
 ISA_sse42  := -msse4.2
 ISA_avx2   := -mavx2 -mfma
 ISA_avx512 := -mavx512f -mavx512dq -mavx512vl -mavx512bw -mavx2 -mfma -mprefer-vector-width=512 -mtune=icelake-server
-BATCH_SRC := $(sort $(wildcard lib/batch_*.c))
+BATCH_SRC := $(sort $(wildcard lib/batch_*.c lib/point_*.c))
 ISA_OBJ  := $(foreach v,$(ISA_LIST),$(BATCH_SRC:lib/%.c=$(B)/obj/%-$(v).o))
 LIB_OBJ  += $(ISA_OBJ)
 $(if $(ISA_X86),$(LIB_SRC:lib/%.c=$(B)/obj/%.o)): CFLAGS_LIB += -DPSIK_ISA_VARIANTS
@@ -115,10 +115,16 @@ deps:
 
 .PHONY: test-build
 test-build: $(T_BIN) $(T_ASAN) $(B)/tests/cxx_header $(B)/tests/c11_header $(SINGLE) \
-            $(if $(ISA_X86),$(B)/tests/test_fastmath_fma)
+            $(if $(ISA_X86),$(B)/tests/test_fastmath_fma $(B)/tests/test_fastmath_scalar_fma)
 
 # fastmath.h as the FMA variants compile it (table-free exp)
 $(B)/tests/test_fastmath_fma: tests/unit/test_fastmath.c lib/fastmath.h lib/fastmath_tables.h
+	@mkdir -p $(dir $@)
+	$(CC) $(CFLAGS_T) $(FAST_FLAGS) $(ISA_avx2) -o $@ $< -lcmocka $(LDLIBS)
+
+# fastmath_scalar.h as the FMA variants compile it
+$(B)/tests/test_fastmath_scalar_fma: tests/unit/test_fastmath_scalar.c lib/fastmath_scalar.h \
+                                     lib/fastmath_scalar_tables.h lib/fastmath.h
 	@mkdir -p $(dir $@)
 	$(CC) $(CFLAGS_T) $(FAST_FLAGS) $(ISA_avx2) -o $@ $< -lcmocka $(LDLIBS)
 

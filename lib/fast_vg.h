@@ -23,6 +23,18 @@ enum { PSIK_VGC_MUALEM = 1, PSIK_VGC_BURDINE, PSIK_VGC_MUALEM_AE };
  * (tests/unit/test_accuracy.c) and equal the batch kernel's bit for bit. */
 PSIK_HIDDEN int psik__vg_point_fast(const psik_vgc *c, double s, psik_point *out);
 
+/* Slots of psik_model.aux that the one-point code reads (lib/vg.c fills
+ * them and names them A_*). */
+enum { PSIK_VGA_ALPHA = 0, PSIK_VGA_N = 1, PSIK_VGA_M = 2, PSIK_VGA_K = 3,
+       PSIK_VGA_L = 8, PSIK_VGA_SC = 10, PSIK_VGA_GE = 11, PSIK_VGA_XE = 13 };
+
+/* The same point through lib/point_vg.c, the code built for one point at a
+ * time, from the model's aux slots (model: PSIK_VGC_*): same contract and
+ * range as psik__vg_point_fast, same accuracy goal; its values agree with
+ * the batch kernel's to a few ulp, not bit for bit. psik_eval and the other
+ * one-point functions use this one. */
+PSIK_HIDDEN int psik__vg_point_scalar(const double *aux, int model, double s, psik_point *out);
+
 /* psik_eval_batch for a van Genuchten row (see psik_family.batch). */
 PSIK_HIDDEN void psik__vg_batch(const psik_model *m, const psik_vgc *c, size_t count,
                                 const double *h, double *theta, double *k,

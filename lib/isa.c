@@ -2,6 +2,9 @@
 #include "isa.h"
 
 static int isa_cap = PSIK_ISA_ID_AVX512;
+#if PSIK_ISA_HAVE
+PSIK_HIDDEN int psik__isa_now = -1;
+#endif
 
 static int isa_best(void)
 {
@@ -26,6 +29,7 @@ static int isa_found = -1;
 __attribute__((constructor)) static void isa_probe(void)
 {
     isa_found = isa_best();
+    psik__isa_now = isa_found < isa_cap ? isa_found : isa_cap;
 }
 #endif
 
@@ -43,5 +47,9 @@ PSIK_HIDDEN int psik__isa_limit(int id)
 {
     int old = isa_cap;
     isa_cap = id;
+#if PSIK_ISA_HAVE
+    if (isa_found >= 0)
+        psik__isa_now = isa_found < isa_cap ? isa_found : isa_cap;
+#endif
     return old;
 }

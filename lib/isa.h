@@ -46,6 +46,13 @@ enum { PSIK_ISA_ID_BASE = 0, PSIK_ISA_ID_SSE42, PSIK_ISA_ID_AVX2, PSIK_ISA_ID_AV
  * limit psik__isa_limit() set (tests run every variant that way). */
 PSIK_HIDDEN int psik__isa(void);
 
+#if PSIK_ISA_HAVE
+/* psik__isa()'s answer once the library's load-time probe has run, else
+ * -1 (read inline by the pickers, which then skip the call). Only builds
+ * with the variants have it (not the single header). */
+PSIK_HIDDEN extern int psik__isa_now;
+#endif
+
 /* Caps psik__isa() at id (for tests; not thread-safe: call it while no
  * other thread evaluates). Returns the previous cap. */
 PSIK_HIDDEN int psik__isa_limit(int id);
@@ -58,7 +65,7 @@ PSIK_HIDDEN int psik__isa_limit(int id);
     PSIK_HIDDEN T name##_base, name##_sse42, name##_avx2, name##_avx512;    \
     static T *name##_pick(void)                                             \
     {                                                                       \
-        switch (psik__isa()) {                                              \
+        switch (psik__isa_now >= 0 ? psik__isa_now : psik__isa()) {         \
         case PSIK_ISA_ID_AVX512: return name##_avx512;                      \
         case PSIK_ISA_ID_AVX2: return name##_avx2;                          \
         case PSIK_ISA_ID_SSE42: return name##_sse42;                        \

@@ -30,20 +30,20 @@
 #include <math.h>
 
 /* aux slots */
-#define A_ALPHA 0
-#define A_N     1
-#define A_M     2
-#define A_K     3   /* m n */
+#define A_ALPHA PSIK_VGA_ALPHA
+#define A_N     PSIK_VGA_N
+#define A_M     PSIK_VGA_M
+#define A_K     PSIK_VGA_K   /* m n */
 #define A_IM_HI 4   /* 1/m */
 #define A_IM_LO 5
 #define A_IN_HI 6   /* 1/n */
 #define A_IN_LO 7
-#define A_L     8   /* pore connectivity (Mualem kinds) */
+#define A_L     PSIK_VGA_L   /* pore connectivity (Mualem kinds) */
 #define A_KEXACT 9  /* 1 when k = m n is exact (m = 1 - 1/n or 1 - 2/n) */
-#define A_SC    10  /* vgm_ae: Se of the unrestricted curve at h_e */
-#define A_GE    11  /* vgm_ae: g at h_e */
+#define A_SC    PSIK_VGA_SC  /* vgm_ae: Se of the unrestricted curve at h_e */
+#define A_GE    PSIK_VGA_GE  /* vgm_ae: g at h_e */
 #define A_SE    12  /* vgm_ae: suction at entry, -h_e */
-#define A_XE    13  /* vgm_ae: x at entry */
+#define A_XE    PSIK_VGA_XE  /* vgm_ae: x at entry */
 #define A_FA    10  /* vg_free_m: a = m + 1/n */
 #define A_FB    11  /* vg_free_m: b = 1 - 1/n */
 #define A_BAB   12  /* vg_free_m: B(a, b) */
@@ -306,8 +306,7 @@ static psik_vgc vg_coef(const psik_model *m, int model)
 static void vgm_point(const psik_model *m, double s, psik_point *out)
 {
     vg_pt q;
-    psik_vgc c = vg_coef(m, PSIK_VGC_MUALEM);
-    if (psik__vg_point_fast(&c, s, out))
+    if (psik__vg_point_scalar(m->aux, PSIK_VGC_MUALEM, s, out))
         return;
     vg_from_s(m->aux, s, &q);
     vgm_fill(m->aux, &q, out);
@@ -434,8 +433,7 @@ static double vgm_ae_se_of(const double *a, const vg_pt *q)
 static void vgm_ae_point(const psik_model *m, double s, psik_point *out)
 {
     vg_pt q;
-    psik_vgc c = vg_coef(m, PSIK_VGC_MUALEM_AE);
-    if (psik__vg_point_fast(&c, s, out))
+    if (psik__vg_point_scalar(m->aux, PSIK_VGC_MUALEM_AE, s, out))
         return;
     vg_from_s(m->aux, s, &q);
     vgm_ae_fill(m->aux, &q, vgm_ae_se_of(m->aux, &q), out);
@@ -658,8 +656,7 @@ static void vgb_fill(const vg_pt *q, psik_point *out)
 static void vgb_point(const psik_model *m, double s, psik_point *out)
 {
     vg_pt q;
-    psik_vgc c = vg_coef(m, PSIK_VGC_BURDINE);
-    if (psik__vg_point_fast(&c, s, out))
+    if (psik__vg_point_scalar(m->aux, PSIK_VGC_BURDINE, s, out))
         return;
     vg_from_s(m->aux, s, &q);
     vgb_fill(&q, out);

@@ -1,0 +1,192 @@
+/* fastmath_scalar.h - exp, expm1, log and log1p for one point at a time
+ * (lib/point_vg.c), built for a short dependency chain rather than for the
+ * vectoriser (not installed).
+ *
+ * fastmath.h serves the vector loops: no table lookups where fused
+ * multiply-adds exist (a lookup becomes a gather), a degree-14 polynomial
+ * instead, and selects through the bits of doubles. One point at a time
+ * pays for those in latency. The functions here use tables (a load costs
+ * what one multiply does and runs beside the arithmetic), short
+ * polynomials, and reductions that are exact by construction:
+ *
+ *   log: x = 2^k z, z in [0.709, 1.418) from the bits; the piece i of z
+ *        (bits 45..51 of bits(x) - OFF) gives 1/c with 8 significant bits
+ *        and log c = lch + lcl (fastmath_scalar_tables.h, generated and
+ *        checked by tools/gen_scalar_tables.py); r = z/c - 1 = z (1/c) - 1
+ *        is exact in one fused multiply-add (|r| <= 0.0059 and at most 53
+ *        significant bits), or in two exact steps without one; log1p(r)
+ *        to r^8 (truncation below 2^-62 relative); k ln2_hi + lch exact.
+ *        The result is a pair hi + lo that is not renormalised (that would
+ *        cost two more dependent additions): lo holds -r^2/2 and smaller
+ *        terms. Absolute error below 2^-61 (relative, below 2^-58, near
+ *        x = 1, where c = 1).
+ *   exp: k = round(128 x / ln 2), r = x - k ln2/128 + lo (|r| <= 0.0029;
+ *        x - k ln2_hi/128 exact, the rest rounded once: below 2^-62), e^r
+ *        - 1 to r^6 (truncation below 2^-62), 2^(j/128) from fastmath.h's
+ *        table in two parts, scaled by 2^e before the last two operations.
+ *        The low part may be as large as the log's (it enters r before
+ *        the polynomial). For -700 <= x <= 708 (every caller's range):
+ *        within 1 ulp (the final rounding plus about 2^-60).
+ *   expm1 (with exp, one reduction): (2^e thi - 1) + 2^e thi (e^r - 1) +
+ *        2^e tlo e^r, the first two summed exactly, so cancellation near 0
+ *        costs nothing.
+ *
+ * Measured against glibc's long double functions by
+ * tests/unit/test_fastmath_scalar.c, built with and without fused
+ * multiply-adds: log pair 2^-64 absolute (the reference's limit), exp 0.74
+ * ulp, expm1 0.96 ulp, log1p 0.87 ulp.
+ *
+ * Selects: psik__sc_sel_le(x, y, a, b) = x <= y ? a : b without a branch
+ * (an unpredictable wet/dry branch would cost more than the blend) and
+ * without the round trip through integer registers that psik__fm_sel
+ * makes outside a vector loop.
+ */
+#ifndef PSIK_FASTMATH_SCALAR_H
+#define PSIK_FASTMATH_SCALAR_H
+
+#include "fastmath.h"
+#include "fastmath_scalar_tables.h"
+
+
+/* a b + c: one rounding where the instruction set has fused multiply-adds
+ * (the FMA variants), two elsewhere; every use tolerates either. */
+#if defined(__FMA__)
+#  define PSIK_SC_MAD(a, b, c) __builtin_fma((a), (b), (c))
+#else
+#  define PSIK_SC_MAD(a, b, c) ((a) * (b) + (c))
+#endif
+
+/* x <= y ? a : b. Compilers turn this into a blend (both operands are
+ * already computed values): an unpredictable wet/dry branch would cost
+ * more, and psik__fm_sel's bit operations take a round trip through
+ * integer registers outside a vector loop. */
+PSIK_FM double psik__sc_sel_le(double x, double y, double a, double b)
+{
+    return x <= y ? a : b;
+}
+
+/* The log core: log(x + xl) as hi + lo for normal finite x > 0 and |xl|
+ * <= ulp(x) (xl enters as xl 2^-k (1/c) (1 - r); has_xl = 0, a constant
+ * after inlining, drops that term). The pair is not
+ * renormalised: hi = k ln2_hi + log c + r and lo carries the rest (-r^2/2
+ * + r^3/3 - ..., |lo| < 1.8e-5), which every caller folds in before
+ * rounding (psik__sc_exp_dd takes such a low part exactly); hi + lo has
+ * absolute error below 2^-60, and relative near x = 1 (where c = 1). */
+PSIK_FM double psik__sc_log_core(double x, double xl, int has_xl, double *lo)
+{
+    uint64_t ix = psik__fm_bits(x);
+    uint64_t tmp = ix - PSIK_SC_LOG_OFF;
+    uint64_t i = (tmp >> 45) & 127u;
+    uint64_t kk = (tmp + 0x8000000000000000ULL) >> 52;              /* k + 2048 */
+    double z = psik__fm_double(ix - (tmp & 0xfff0000000000000ULL));
+    double kd = (double)((int64_t)kk - 2048);
+    double sk = psik__fm_double((3071u - kk) << 52);                 /* 2^-k */
+    const double *t = psik__sc_log_tab + 3 * i;
+    double invc = t[0], lch = t[1], lcl = t[2];
+    double r, A, B, e1, ar2, r2, P, cr;
+#if defined(__FMA__)
+    r = __builtin_fma(z, invc, -1.0);                                /* exact */
+#else
+    {   /* z = zh + zl with zh of 45 bits: zh/c - 1 and zl/c exact */
+        double zh = psik__fm_double(psik__fm_bits(z) & 0xffffffffffffff00ULL);
+        r = (zh * invc - 1.0) + (z - zh) * invc;   /* one rounding, below 2^-61 */
+    }
+#endif
+    A = kd * PSIK_SC_LN2HI + lch;                                    /* exact */
+    /* ordered: |A| >= |r| (A = 0, or |lch| >= |r| for k = 0, checked by
+     * the table's generator, or |A| > 0.34) */
+    psik__fm_fast_two_sum(A, r, &B, &e1);
+    ar2 = (-0.5 * r) * r;
+    r2 = r * r;
+    P = PSIK_SC_MAD(r2 * r2, PSIK_SC_MAD(r, -0.125, 1.0 / 7.0),
+                    PSIK_SC_MAD(r2, PSIK_SC_MAD(r, -1.0 / 6.0, 0.2),
+                                PSIK_SC_MAD(r, -0.25, 1.0 / 3.0)));
+    cr = has_xl ? ((xl * sk) * invc) * (1.0 - r) : 0.0;
+    *lo = ((e1 + ar2) + PSIK_SC_MAD(kd, PSIK_SC_LN2LO, lcl)) + PSIK_SC_MAD(r * r2, P, cr);
+    return B;
+}
+
+/* log(x) as hi + lo (psik__sc_log_core's pair), normal finite x > 0. */
+PSIK_FM double psik__sc_log_dd(double x, double *lo)
+{
+    return psik__sc_log_core(x, 0.0, 0, lo);
+}
+
+/* log1p(x) as hi + lo (the same pair) for finite x > -1 with 1 + x
+ * normal: log(u + e), u = fl(1 + x), e its exact rounding error. */
+PSIK_FM double psik__sc_log1p_dd(double x, double *lo)
+{
+    double u = 1.0 + x;
+    double e1 = 1.0 - (u - x), e0 = x - (u - 1.0);
+    double e = psik__sc_sel_le(1.0, x, e1, e0);
+    return psik__sc_log_core(u, e, 1, lo);
+}
+
+/* log1p(x) rounded to double (same domain). */
+PSIK_FM double psik__sc_log1p(double x)
+{
+    double lo, hi = psik__sc_log1p_dd(x, &lo);
+    return hi + lo;
+}
+
+#define PSIK_SC_INVLN2_128 184.66496523378731    /* 128 / ln 2 */
+
+/* The exp core at x + lo, |x| <= 708, |lo| <= 1e-4 (any pair the log core
+ * or a product of one gives): k = round(128 x / ln 2), r = (x - k ln2_hi /
+ * 128) + (lo - k ln2_lo / 128) with the first part exact; e^r = 1 + s;
+ * the result is (2^e thi) + (2^e thi) s + 2^e tlo with sh = 2^e thi and
+ * sl = 2^e tlo exact scalings (e is in the normal range). */
+PSIK_FM void psik__sc_exp_core(double x, double lo, double *sh_o, double *sl_o, double *s_o,
+                               double *rl_o)
+{
+#if defined(__FMA__)
+    double sh = __builtin_fma(x, PSIK_SC_INVLN2_128, PSIK_FM_SHIFT);
+#else
+    double sh = x * PSIK_SC_INVLN2_128 + PSIK_FM_SHIFT;
+#endif
+    uint64_t ku = psik__fm_bits(sh) - psik__fm_bits(PSIK_FM_SHIFT) + (1023u << 7);
+    double k = sh - PSIK_FM_SHIFT;
+    double r0 = PSIK_SC_MAD(-k, PSIK_FM_LN2HI / 128.0, x);         /* exact */
+    double w = PSIK_SC_MAD(-k, PSIK_FM_LN2LO / 128.0, lo);
+    double r = r0 + w, r2, p1, p2, p3, P, bb;
+    uint64_t j = ku & 127u;
+    double scale = psik__fm_double((ku >> 7) << 52);              /* 2^e, normal */
+    r2 = r * r;
+    p1 = PSIK_SC_MAD(r, 1.0 / 6.0, 0.5);
+    p2 = PSIK_SC_MAD(r, 1.0 / 120.0, 1.0 / 24.0);
+    p3 = PSIK_SC_MAD(r2, 1.0 / 720.0, p2);
+    P = PSIK_SC_MAD(r2, p3, p1);
+    *s_o = PSIK_SC_MAD(r2, P, r);                                 /* e^r - 1 */
+    bb = r - r0;
+    *rl_o = (r0 - (r - bb)) + (w - bb);     /* r0 + w - r exactly (for expm1) */
+    *sh_o = psik__fm_exp_tab[2 * j] * scale;
+    *sl_o = psik__fm_exp_tab[2 * j + 1] * scale;
+}
+
+/* exp(x + lo) for -700 <= x <= 708 and lo as psik__sc_exp_core takes it
+ * (below -700 the table's low part, scaled, becomes subnormal and the
+ * result near 2^-1022 can be 1.05 ulp off). */
+PSIK_FM double psik__sc_exp_dd(double x, double lo)
+{
+    double sh, sl, s, rl;
+    psik__sc_exp_core(x, lo, &sh, &sl, &s, &rl);
+    (void)rl;
+    return sh + PSIK_SC_MAD(sh, s, sl);
+}
+
+/* exp(x + lo) and expm1(x + lo) for -700 <= x <= 0: expm1 = (sh - 1) + sh
+ * s + sl (1 + s) + sh rl, the first two terms summed exactly (sh - 1 is
+ * exact for e >= -1 and has no cancellation below), rl the rounding error
+ * of the reduced argument (worth half an ulp of expm1 near 0 otherwise). */
+PSIK_FM void psik__sc_exp_expm1_dd(double x, double lo, double *e, double *em1)
+{
+    double sh, sl, s, rl, a, ea, p, pe, u, ue;
+    psik__sc_exp_core(x, lo, &sh, &sl, &s, &rl);
+    *e = sh + PSIK_SC_MAD(sh, s, sl);
+    psik__fm_two_sum(sh, -1.0, &a, &ea);
+    psik__fm_two_prod(sh, s, &p, &pe);
+    psik__fm_two_sum(a, p, &u, &ue);
+    *em1 = u + (ue + (ea + PSIK_SC_MAD(sl, 1.0 + s, PSIK_SC_MAD(sh, rl, pe))));
+}
+
+#endif

@@ -1,0 +1,158 @@
+/* point_vg.c - the fused van Genuchten point that psik_eval, psik_kr,
+ * psik_capacity and psik_dk_dh use (vgm, vgm_ae, vgb).
+ *
+ * Same method as the batch kernel (batch_vg.c, which explains it): with p =
+ * alpha s, lp = log p in two doubles, t = n lp, a = exp(-|t|), b =
+ * log1p(a),
+ *   ln Se  = -m b            (wet, t <= 0)      -k lp - m b   (dry)
+ *   ln y^m = k lp - m b      (wet)              -m b          (dry)
+ * the exponents in double-double, Se = exp(ln Se), g = 1 - y^m =
+ * -expm1(ln y^m), Se^l = sqrt(Se) for l = 1/2, and the derivatives from
+ * y = x/(1+x) and r = 1/(1+x). One difference in the algebra: the exponent
+ * that is not -m b is the same expression, sign(t) k lp - m b, on both
+ * sides, so it is formed once and the two exponents are swapped by a
+ * select on the wet/dry side.
+ *
+ * What differs from the batch kernel is the arithmetic: this code runs one
+ * point at a time, so its cost is the length of its dependency chain (log,
+ * exp, log1p, exp in a row), and it uses fastmath_scalar.h (table-driven,
+ * exact reductions, short polynomials; b in plain double, which its uses
+ * allow: m b enters ln Se and ln y^m as an absolute error m |db| <= 2^-53,
+ * and g ~ m b where y^m -> 1 keeps b's relative error). Its values meet
+ * the same accuracy goal (tests/unit/test_accuracy.c measures psik_eval and
+ * psik_eval_batch separately) and agree with the batch kernel's to a few
+ * ulp (tests/unit/test_isa.c checks 1e-14 relative); they are not the same
+ * bits.
+ *
+ * Compiled once per instruction set (isa.h) like the batch kernels: the
+ * FMA variants form the exact products and the log reduction in one
+ * instruction each. -ffp-contract=off as there.
+ */
+#include "fast_vg.h"
+#include "fastmath_scalar.h"
+#include "isa.h"
+
+#include <float.h>
+#include <math.h>
+
+/* c * (xh + xl) as an unnormalised double-double (c, xh moderate). */
+PSIK_FM void sc_mul(double c, double xh, double xl, double *ph, double *pl)
+{
+    double e;
+    psik__fm_two_prod(c, xh, ph, &e);
+    *pl = PSIK_SC_MAD(c, xl, e);
+}
+
+PSIK_FM int sc_core(const double *aux, double s, int half, int model, psik_point *out)
+{
+    const double alpha = aux[PSIK_VGA_ALPHA], n = aux[PSIK_VGA_N], m = aux[PSIK_VGA_M];
+    const double k = aux[PSIK_VGA_K], ka = k * alpha;
+    const double l = model == PSIK_VGC_BURDINE ? 0.5 : aux[PSIK_VGA_L];
+    double p = alpha * s;
+    double lph, lpl, th, tl, ah, al, a, bh, bl, mbh, mbl, kh, kl, dh, dl, eSh, eSl, eYh, eYl;
+    double S, ym, em1, g, inv, y, r, invp, dls, dg, se, G, dG, seL, kr, dkr, sg;
+    if (!(p >= DBL_MIN && p <= DBL_MAX))
+        return 0;
+    lph = psik__sc_log_dd(p, &lpl);
+    sc_mul(n, lph, lpl, &th, &tl);
+    if (!(th >= -700.0 && th <= 700.0))
+        return 0;
+    /* -|t| in two parts, with sg = +1 on the wet side (t <= 0), -1 on the
+     * dry side (exact products) */
+    sg = psik__sc_sel_le(th, 0.0, 1.0, -1.0);
+    ah = -fabs(th);
+    al = tl * sg;
+    a = psik__sc_exp_dd(ah, al);
+    bh = psik__sc_log1p_dd(a, &bl);
+    sc_mul(m, bh, bl, &mbh, &mbl);                  /* m b */
+    sc_mul(k * sg, lph, lpl, &kh, &kl);            /* sign(-t) k lp */
+    psik__fm_two_sum(kh, -mbh, &dh, &dl);
+    dl = dl + (kl - mbl);
+    /* wet: ln Se = -m b, ln y^m = d; dry: ln Se = d, ln y^m = -m b */
+    eSh = psik__sc_sel_le(th, 0.0, -mbh, dh);
+    eSl = psik__sc_sel_le(th, 0.0, -mbl, dl);
+    eYh = psik__sc_sel_le(th, 0.0, dh, -mbh);
+    eYl = psik__sc_sel_le(th, 0.0, dl, -mbl);
+    S = psik__sc_exp_dd(eSh, eSl);
+    psik__sc_exp_expm1_dd(eYh, eYl, &ym, &em1);
+    g = -em1;
+    inv = 1.0 / (1.0 + a);
+    y = psik__sc_sel_le(th, 0.0, a * inv, inv);
+    r = psik__sc_sel_le(th, 0.0, inv, a * inv);
+    invp = 1.0 / p;
+    dls = ka * y * invp;
+    dg = ka * ym * r * invp;
+    se = S;
+    G = g;
+    dG = dg;
+    if (model == PSIK_VGC_MUALEM_AE) {
+        /* Se = S / Sc; near the entry head on the wet side as
+         * exp(-m log1p((x - xe) / (1 + xe))), which keeps 1 - Se. */
+        double xe = aux[PSIK_VGA_XE];
+        if (th <= 0.0 && xe <= 1.0) {
+            double wh, wl, vh, vl;
+            wh = psik__sc_log1p_dd((a - xe) / (1.0 + xe), &wl);
+            sc_mul(-m, wh, wl, &vh, &vl);
+            se = psik__sc_exp_dd(vh, vl);
+        } else {
+            se = S / aux[PSIK_VGA_SC];
+        }
+        G = g / aux[PSIK_VGA_GE];
+        dG = dg / aux[PSIK_VGA_GE];
+    }
+    if (model == PSIK_VGC_BURDINE) {
+        double se2 = se * se;
+        kr = se2 * G;
+        dkr = se2 * (2.0 * G * dls + dG);
+    } else {
+        if (half) {
+            seL = sqrt(se);
+        } else {
+            double lh, ll, esh, esl;
+            if (model == PSIK_VGC_MUALEM_AE) {
+                if (!(se >= DBL_MIN))
+                    return 0;
+                esh = psik__sc_log_dd(se, &esl);
+            } else {
+                esh = eSh;
+                esl = eSl;
+            }
+            sc_mul(l, esh, esl, &lh, &ll);
+            if (!(lh <= 708.0 && lh >= -700.0))
+                return 0;
+            seL = psik__sc_exp_dd(lh, ll);
+        }
+        kr = seL * G * G;
+        dkr = seL * G * (l * G * dls + 2.0 * dG);
+    }
+    out->se = se;
+    out->kr = kr;
+    out->dse = dls * se;
+    out->dkr = dkr;
+    return 1;
+}
+
+PSIK_HIDDEN int PSIK_ISA_FN(psik__vg_point_sc)(const double *aux, int model, double s,
+                                               psik_point *out);
+PSIK_HIDDEN int PSIK_ISA_FN(psik__vg_point_sc)(const double *aux, int model, double s,
+                                               psik_point *out)
+{
+    int half = aux[PSIK_VGA_L] == 0.5;
+    if (model == PSIK_VGC_MUALEM)
+        return half ? sc_core(aux, s, 1, PSIK_VGC_MUALEM, out)
+                    : sc_core(aux, s, 0, PSIK_VGC_MUALEM, out);
+    if (model == PSIK_VGC_MUALEM_AE)
+        return half ? sc_core(aux, s, 1, PSIK_VGC_MUALEM_AE, out)
+                    : sc_core(aux, s, 0, PSIK_VGC_MUALEM_AE, out);
+    return sc_core(aux, s, 1, PSIK_VGC_BURDINE, out);   /* l = 1/2 by definition */
+}
+
+#if PSIK_ISA_BASE
+typedef int vg_point_sc_t(const double *aux, int model, double s, psik_point *out);
+PSIK_ISA_SELECT(vg_point_sc_t, psik__vg_point_sc)
+
+PSIK_HIDDEN int psik__vg_point_scalar(const double *aux, int model, double s, psik_point *out)
+{
+    return psik__vg_point_sc_pick()(aux, model, s, out);
+}
+#endif
