@@ -273,17 +273,72 @@ PSIK_FM double psik__fm_expm1(double x)
     return psik__fm_sel(x == 0.0, x, em1);       /* keeps the sign of -0 */
 }
 
+#if defined(__FMA__)
 /* log(x + xl) as hi + lo for normal finite x > 0 and |xl| <= ulp(x),
  * absolute error below 2^-58 (and relative below 2^-58 when 0.707 < x <
- * 1.414). Method: x = 2^k z with z in [sqrt(2)/2, sqrt(2)) from the bits;
+ * 1.414). Zero, subnormal, negative, infinite and NaN x give garbage:
+ * callers select. Both forms take x = 2^k z with z in [sqrt(2)/2,
+ * sqrt(2)) from the bits and add k ln 2 in two parts at the end.
+ *
+ * With fused multiply-adds (the AVX2 and AVX-512 variants) there is no
+ * table, so no gathers (each costs about as much as a dozen multiply-adds
+ * on the processors these variants are for): s = (z - 1)/(z + 1) as sh +
+ * sl, |s| <= 0.1716, through one reciprocal and the exact remainder (z - 1
+ * and the parts of z + 1 exact; xl enters as xl 2^-k in both); log z = 2
+ * atanh(s) = 2 sh + 2 sl (1 + sh^2) + 2 sh^3 (1/3 + sh^2 Q), Q the series
+ * to s^23/23 by Estrin's scheme (truncation below 2^-65 relative); 2 sh^3
+ * and its third are carried in two parts (exact products in fused
+ * multiply-adds, 1/3 in two doubles) and the third summed exactly into
+ * the result, so that what is rounded is below 2^-14 of it. */
+PSIK_FM double psik__fm_log_dd_nrm(double x, double xl, double *lo)
+{
+    uint64_t ix = psik__fm_bits(x);
+    uint64_t tmp = ix - 0x3fe6a09e667f3bcdULL + 0x8000000000000000ULL;
+    uint64_t kk = tmp >> 52;                              /* k + 2048 */
+    uint64_t iz = ix - ((kk - 2048u) << 52);
+    double z = psik__fm_double(iz);
+    double k = psik__fm_double(0x4330000000000000ULL | kk) - 4503599627370496.0 - 2048.0;
+    double sk = psik__fm_double((3071u - kk) << 52);      /* 2^-k, as below */
+    double f = z - 1.0;                                   /* exact */
+    double d = z + 1.0, dl = z - (d - 1.0);               /* d + dl = z + 1 exactly */
+    double zl = xl * sk;
+    double invd = 1.0 / d;
+    double sh = f * invd;
+    double rem = __builtin_fma(-sh, d, f);                /* f - sh d, to 2^-53 of itself */
+    /* 2 sl, 2 ((f + zl)/(d + dl + zl) - sh); 2 invd exact, so that a
+     * subnormal zl (log1p of a subnormal) is not halved and doubled */
+    double sl2 = ((rem - sh * (dl + zl)) + zl) * (2.0 * invd);
+    double t = 2.0 * sh, s2 = sh * sh, s2l = __builtin_fma(sh, sh, -s2);
+    double uh = t * s2, ul = __builtin_fma(t, s2, -uh) + t * s2l;   /* 2 sh^3 */
+    double u3 = uh * (1.0 / 3.0);
+    double u3l = __builtin_fma(uh, 1.0 / 3.0, -u3) + uh * 1.850371707708594e-17;  /* 1/3 - fl(1/3) */
+    double s4 = s2 * s2, s8 = s4 * s4, Q, H2, e2, H3, e3, l, hi;
+    {
+        double p0 = __builtin_fma(1.0 / 7.0, s2, 1.0 / 5.0);
+        double p1 = __builtin_fma(1.0 / 11.0, s2, 1.0 / 9.0);
+        double p2 = __builtin_fma(1.0 / 15.0, s2, 1.0 / 13.0);
+        double p3 = __builtin_fma(1.0 / 19.0, s2, 1.0 / 17.0);
+        double p4 = __builtin_fma(1.0 / 23.0, s2, 1.0 / 21.0);
+        double q0 = __builtin_fma(p1, s4, p0), q1 = __builtin_fma(p3, s4, p2);
+        Q = s2 * __builtin_fma(p4, s8 * s8, __builtin_fma(q1, s8, q0));
+    }
+    /* |k ln2| >= |2 sh| (or k = 0), and |2 sh| > |2 sh^3 / 3| */
+    psik__fm_fast_two_sum(k * PSIK_FM_LN2HI, t, &H2, &e2);
+    psik__fm_fast_two_sum(H2, u3, &H3, &e3);
+    l = (e2 + e3) + (k * PSIK_FM_LN2LO
+                     + (u3l + (ul * (1.0 / 3.0) + (__builtin_fma(sl2, s2, sl2) + uh * Q))));
+    hi = H3 + l;
+    *lo = l - (hi - H3);
+    return hi;
+}
+#else
+/* The same without fused multiply-adds (portable, SSE4.2), from a table:
  * c = j/128 the nearest multiple of 1/128 (z - c exact, Sterbenz); r =
  * (z - c)/c as rh + rl (rh = (z - c) * fl(1/c) from the table, rl from the
  * exact remainder: c has 8 bits; xl enters rl as xl 2^-k (1 - rh) / c,
  * to second order, with no division); log z = log c + log1p(r) with log c in two
  * parts from the table and log1p(r) = r - r^2/2 + r^3 (1/3 - r/4 + ... +
- * r^4/7) for |r| <= 0.0055 (truncation below 2^-63); k ln 2 in two parts.
- * Zero, subnormal, negative, infinite and NaN x give garbage: callers
- * select. */
+ * r^4/7) for |r| <= 0.0055 (truncation below 2^-63). */
 PSIK_FM double psik__fm_log_dd_nrm(double x, double xl, double *lo)
 {
     uint64_t ix = psik__fm_bits(x);
@@ -315,6 +370,7 @@ PSIK_FM double psik__fm_log_dd_nrm(double x, double xl, double *lo)
     *lo = l - (hi - H2);
     return hi;
 }
+#endif
 
 /* log(x) as hi + lo for finite x > 0, normal or subnormal (scaled by
  * 2^54 first), with psik__fm_log_dd_nrm's error. */
