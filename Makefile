@@ -70,8 +70,15 @@ $(FAST_OBJ): lib/fastmath.h lib/fastmath_tables.h lib/fast_vg.h lib/isa.h lib/fa
 ISA_X86  := $(if $(findstring x86_64,$(shell $(CC) -dumpmachine)),1)
 ISA_LIST := $(if $(ISA_X86),sse42 avx2 avx512)
 ISA_sse42  := -msse4.2
-ISA_avx2   := -mavx2 -mfma
-ISA_avx512 := -mavx512f -mavx512dq -mavx512vl -mavx512bw -mavx2 -mfma -mprefer-vector-width=512 -mtune=icelake-server
+# The FMA variants' kernels are long chains of dependent operations over a few
+# independent heads per iteration (batch_vg.c): scheduling before register
+# allocation interleaves the chains, which the processor's reorder window
+# cannot do across a whole chain (vgm batch 12.6x -> 15-17x, AVX2 6.7x ->
+# 8.9x on the bench machine); SSE4.2, with 16 two-lane registers, gets slower.
+# GCC only (clang schedules before allocation anyway, and refuses the flags).
+ISA_SCHED  := $(if $(filter-out 0,$(shell $(CC) -v 2>&1 | grep -c '^gcc version')),-fschedule-insns -fsched-pressure)
+ISA_avx2   := -mavx2 -mfma $(ISA_SCHED)
+ISA_avx512 := -mavx512f -mavx512dq -mavx512vl -mavx512bw -mavx2 -mfma -mprefer-vector-width=512 -mtune=icelake-server $(ISA_SCHED)
 BATCH_SRC := $(sort $(wildcard lib/batch_*.c lib/point_*.c))
 ISA_OBJ  := $(foreach v,$(ISA_LIST),$(BATCH_SRC:lib/%.c=$(B)/obj/%-$(v).o))
 LIB_OBJ  += $(ISA_OBJ)

@@ -12,8 +12,10 @@ static void redo(const psik_model *m, double h, double *th, double *kk, double *
 }
 
 /* Is flag i set, in flags of the width the kernel writes? */
-static int flag_at(const void *bad, size_t flag_bytes, int i)
+static int flag_at(const void *bad, const double *th, size_t flag_bytes, int i)
 {
+    if (flag_bytes == 0)
+        return th[i] != th[i];
     return flag_bytes == 1 ? ((const unsigned char *)bad)[i] != 0
                            : ((const uint64_t *)bad)[i] != 0;
 }
@@ -46,7 +48,10 @@ PSIK_HIDDEN void psik__blocks_run(const psik_model *m, const void *coef, psik_bl
         uint64_t any = 0;
         void *flags = flag_bytes == 1 ? (void *)bad.c : (void *)bad.u;
         fn(m, coef, cnt, h + i0, th, kk, cc, dk, flags);
-        if (flag_bytes == 1)   /* reductions the compiler vectorises */
+        if (flag_bytes == 0)   /* reductions the compiler vectorises */
+            for (i = 0; i < cnt; i++)
+                any |= th[i] != th[i];
+        else if (flag_bytes == 1)
             for (i = 0; i < cnt; i++)
                 any |= bad.c[i];
         else
@@ -54,7 +59,7 @@ PSIK_HIDDEN void psik__blocks_run(const psik_model *m, const void *coef, psik_bl
                 any |= bad.u[i];
         if (any)
             for (i = 0; i < cnt; i++)
-                if (flag_at(flags, flag_bytes, i))
+                if (flag_at(flags, th, flag_bytes, i))
                     redo(m, h[i0 + i], th + i, kk + i, cc + i, dk + i);
     }
 }

@@ -20,7 +20,10 @@
 /* One block: cnt <= PSIK_BLK heads, every output written (none NULL), and
  * a flag per head in bad (unsigned char or uint64_t, as the kernel chose:
  * the width that keeps its loop fastest), nonzero where psik_eval must redo
- * head i. coef is the kernel's own. */
+ * head i; or no flags at all (bad unused) and th[i] NaN where head i must
+ * be redone, which keeps the loop to doubles only (a byte array beside
+ * them makes the vectoriser take 64 lanes at a time, and spill). coef is
+ * the kernel's own. */
 typedef void psik_block_t(const psik_model *m, const void *coef, int cnt,
                           const double *h, double *th, double *kk, double *cc,
                           double *dk, void *bad);
@@ -37,7 +40,8 @@ typedef int psik_block_range_t(const psik_model *m, const void *coef, double h_l
 
 /* psik_eval_batch through blocks of fn (h != NULL, m valid): NULL outputs
  * go to scratch space; fn NULL means psik_eval head by head. flag_bytes is
- * the size of fn's flags: 1 (unsigned char) or 8 (uint64_t). */
+ * the size of fn's flags: 1 (unsigned char) or 8 (uint64_t), or 0 for a
+ * kernel that marks its bad lanes by a NaN theta. */
 PSIK_HIDDEN void psik__blocks_run(const psik_model *m, const void *coef, psik_block_fn fn,
                                   size_t flag_bytes, size_t count, const double *h,
                                   double *theta, double *k, double *capacity,
