@@ -9,9 +9,11 @@
  * reciprocal. One log and two exps per point, branch-free. Se and Kr are
  * exponentials of non-positive numbers and the derivatives are finite and
  * non-negative, so eval.c's clamps are the identity here (but for K' =
- * ks dKr/dh, clamped as there). Heads at or above h_b, NaN, infinite, or
- * with s_b/s below the normal range (suctions 1e308 times the air-entry
- * value) are done by psik_eval.
+ * ks dKr/dh, clamped as there). Heads at or above h_b get the saturated
+ * values by selects in the block (in the bench's log-uniform heads they
+ * are nearly half, and psik_eval one by one cost more than the block);
+ * NaN, infinite heads and those with s_b/s below the normal range
+ * (suctions 1e308 times the air-entry value) are done by psik_eval.
  *
  * Compiled once per instruction set (isa.h), like batch_vg.c; on one
  * machine psik_eval and psik_eval_batch use the same variant's code.
@@ -64,14 +66,18 @@ PSIK_HIDDEN int PSIK_ISA_FN(psik__bc_block)(const psik_model *mo, const void *co
 {
     const psik_bcc *c = (const psik_bcc *)coef;
     const double dts = mo->theta_s - mo->theta_r, ks = mo->ks;
+    const double h_sat = mo->h_sat, ts = mo->theta_s;
     int i, out = 0;
     for (i = 0; i < cnt; i++) {
         double hi = h[i], se, kr, dse, dkr;
+        int sat = hi >= h_sat;
         (void)bc_core(c, -hi, &se, &kr, &dse, &dkr);
-        th[i] = psik__fb_theta(mo, se);
-        kk[i] = ks * kr;
-        cc[i] = dts * dse;
-        dk[i] = psik__fb_pos(ks * dkr);
+        /* saturated heads as psik_eval gives them, here rather than
+         * redone one by one (the core's values there are garbage) */
+        th[i] = psik__fm_sel(sat, ts, psik__fb_theta(mo, se));
+        kk[i] = psik__fm_sel(sat, ks, ks * kr);
+        cc[i] = psik__fm_sel(sat, 0.0, dts * dse);
+        dk[i] = psik__fm_sel(sat, 0.0, psik__fb_pos(ks * dkr));
         out |= !(hi > h_lo) | !(hi < h_hi);
     }
     return out;
@@ -93,7 +99,9 @@ PSIK_HIDDEN void psik__bc_batch(const psik_model *m, const psik_bcc *c, size_t c
 {
     /* the core holds for s_b < s < s_b / DBL_MIN (halved: a margin) */
     double s_max = c->sb * (0.5 / DBL_MIN);
+    /* saturated heads the block does itself: only NaN, +inf and the
+     * far dry end go to psik_eval */
     psik__blocks_run_range(m, c, psik__bc_block_pick(), s_max < DBL_MAX ? -s_max : -DBL_MAX,
-                           m->h_sat, count, h, theta, k, capacity, dk_dh);
+                           HUGE_VAL, count, h, theta, k, capacity, dk_dh);
 }
 #endif /* PSIK_ISA_BASE */
