@@ -5,7 +5,7 @@
  * instruction set lacks (integers travel through the bits of doubles), no
  * libm calls except sqrt; table lookups only into two small constant
  * tables (fastmath_tables.h, generated with mpmath), which become gathers
- * (exp needs none where fused multiply-adds exist).
+ * (neither exp nor log needs them where fused multiply-adds exist).
  *
  * Error bounds (measured by tests/unit/test_fastmath.c against glibc's long
  * double functions, 64-bit significand, over millions of arguments):
