@@ -1,5 +1,6 @@
 /* batch_vg.c - fused and vectorised van Genuchten evaluation (vgm, vgm_ae,
- * vgb): the point that psik_eval uses, and the psik_eval_batch kernels.
+ * vgb): the psik_eval_batch kernels (psik_eval has one-point code of its
+ * own with the same method, lib/point_vg.c).
  *
  * Method. With p = alpha s and lp = log p carried in two doubles
  * (fastmath.h), t = n lp, a = exp(-|t|) (x on the wet side p <= 1, 1/x on
@@ -23,13 +24,11 @@
  *
  * Instruction sets (isa.h): this file is compiled once per variant
  * (portable, SSE4.2, AVX2 with FMA, AVX-512 with FMA) and psik__isa() picks
- * one per call, for the batch loop and for the single point psik_eval
- * uses (the widest variant's scalar code). The FMA variants use the
- * table-free exp of fastmath.h, so their bits differ from the portable
- * ones by rounding (both within the accuracy goal); on one machine
- * psik_eval and psik_eval_batch use the same variant's code and give the
- * same bits. No contraction into fused multiply-adds beyond the explicit
- * ones (-ffp-contract=off, pragma for clang).
+ * one per call. The FMA variants use the table-free exp and log of
+ * fastmath.h, so their bits differ from the portable ones by rounding
+ * (both within the accuracy goal), and the batch agrees with psik_eval to
+ * a few ulp (test_isa: 1e-14). No contraction into fused multiply-adds
+ * beyond the explicit ones (-ffp-contract=off, pragma for clang).
  */
 #include "fast_block.h"
 #include "fast_vg.h"
@@ -130,34 +129,6 @@ PSIK_FM int vg_core(const psik_vgc *c, double s, int half, int model,
          * skips them (a lane that fails goes to the scalar fix-up). */
         ok &= (dls * se <= 1e300) & (dkr <= 1e300);
     return ok;
-}
-
-PSIK_HIDDEN int PSIK_ISA_FN(psik__vg_point)(const psik_vgc *c, double s, psik_point *out)
-{
-    double se, kr, dse, dkr;
-    int ok;
-    if (c->l == 0.5) {
-        if (c->model == PSIK_VGC_MUALEM)
-            ok = vg_core(c, s, 1, PSIK_VGC_MUALEM, &se, &kr, &dse, &dkr);
-        else if (c->model == PSIK_VGC_MUALEM_AE)
-            ok = vg_core(c, s, 1, PSIK_VGC_MUALEM_AE, &se, &kr, &dse, &dkr);
-        else
-            ok = vg_core(c, s, 1, PSIK_VGC_BURDINE, &se, &kr, &dse, &dkr);
-    } else {
-        if (c->model == PSIK_VGC_MUALEM)
-            ok = vg_core(c, s, 0, PSIK_VGC_MUALEM, &se, &kr, &dse, &dkr);
-        else if (c->model == PSIK_VGC_MUALEM_AE)
-            ok = vg_core(c, s, 0, PSIK_VGC_MUALEM_AE, &se, &kr, &dse, &dkr);
-        else
-            ok = vg_core(c, s, 0, PSIK_VGC_BURDINE, &se, &kr, &dse, &dkr);
-    }
-    if (!ok)
-        return 0;
-    out->se = se;
-    out->kr = kr;
-    out->dse = dse;
-    out->dkr = dkr;
-    return 1;
 }
 
 /* The model's constants a block reads, in locals (the compiler cannot
@@ -283,18 +254,11 @@ PSIK_HIDDEN vg_block_fn PSIK_ISA_FN(psik__vg_pick)(const psik_vgc *c)
 
 #if PSIK_ISA_BASE
 typedef vg_block_fn vg_pick_t(const psik_vgc *c);
-typedef int vg_point_t(const psik_vgc *c, double s, psik_point *out);
 PSIK_ISA_SELECT(vg_pick_t, psik__vg_pick)
-PSIK_ISA_SELECT(vg_point_t, psik__vg_point)
 
 static vg_block_fn pick(const psik_vgc *c)
 {
     return psik__vg_pick_pick()(c);
-}
-
-PSIK_HIDDEN int psik__vg_point_fast(const psik_vgc *c, double s, psik_point *out)
-{
-    return psik__vg_point_pick()(c, s, out);
 }
 
 PSIK_HIDDEN void psik__vg_batch(const psik_model *m, const psik_vgc *c, size_t count,

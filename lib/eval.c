@@ -18,27 +18,6 @@ static const psik_family *fam(const psik_model *m)
     return psik__family(m->kind);
 }
 
-/* Finite and non-negative: overflowed derivatives become DBL_MAX. */
-static double clamp_pos(double v)
-{
-    if (!(v >= 0.0))      /* negative rounding residue (or NaN from 0 * inf) */
-        return 0.0;
-    return v > DBL_MAX ? DBL_MAX : v;
-}
-
-static double clamp01(double v)
-{
-    if (!(v > 0.0))
-        return 0.0;
-    return v > 1.0 ? 1.0 : v;
-}
-
-static double theta_of(const psik_model *m, double se)
-{
-    double t = m->theta_r + (m->theta_s - m->theta_r) * se;
-    return t > m->theta_s ? m->theta_s : t;
-}
-
 /* Unsaturated point with clamping; s > 0. Inlined: psik_eval's own cost
  * beside the point's is a few instructions. */
 #if defined(__GNUC__)
@@ -47,10 +26,10 @@ __attribute__((always_inline))
 static inline void point_at(const psik_family *f, const psik_model *m, double s, psik_point *p)
 {
     f->point(m, s, p);
-    p->se = clamp01(p->se);
-    p->kr = clamp01(p->kr);
-    p->dse = clamp_pos(p->dse);
-    p->dkr = clamp_pos(p->dkr);
+    p->se = psik__clamp01(p->se);
+    p->kr = psik__clamp01(p->kr);
+    p->dse = psik__clamp_pos(p->dse);
+    p->dkr = psik__clamp_pos(p->dkr);
 }
 
 PSIK_API double psik_se(const psik_model *m, double h)
@@ -60,7 +39,7 @@ PSIK_API double psik_se(const psik_model *m, double h)
         return NAN;
     if (h >= m->h_sat)
         return 1.0;
-    return clamp01(f->se(m, -h));
+    return psik__clamp01(f->se(m, -h));
 }
 
 PSIK_API double psik_theta(const psik_model *m, double h)
@@ -70,7 +49,7 @@ PSIK_API double psik_theta(const psik_model *m, double h)
         return NAN;
     if (h >= m->h_sat)
         return m->theta_s;
-    return theta_of(m, clamp01(f->se(m, -h)));
+    return psik__theta_of(m, psik__clamp01(f->se(m, -h)));
 }
 
 PSIK_API double psik_kr(const psik_model *m, double h)
@@ -80,7 +59,7 @@ PSIK_API double psik_kr(const psik_model *m, double h)
         return NAN;
     if (h >= m->h_sat)
         return 1.0;
-    return clamp01(f->kr(m, -h));
+    return psik__clamp01(f->kr(m, -h));
 }
 
 PSIK_API double psik_k(const psik_model *m, double h)
@@ -90,7 +69,7 @@ PSIK_API double psik_k(const psik_model *m, double h)
         return NAN;
     if (h >= m->h_sat)
         return m->ks;
-    return m->ks * clamp01(f->kr(m, -h));
+    return m->ks * psik__clamp01(f->kr(m, -h));
 }
 
 PSIK_API double psik_capacity(const psik_model *m, double h)
@@ -102,7 +81,7 @@ PSIK_API double psik_capacity(const psik_model *m, double h)
     if (h >= m->h_sat)
         return 0.0;
     point_at(f, m, -h, &p);
-    return clamp_pos((m->theta_s - m->theta_r) * p.dse);
+    return psik__clamp_pos((m->theta_s - m->theta_r) * p.dse);
 }
 
 PSIK_API double psik_dk_dh(const psik_model *m, double h)
@@ -114,7 +93,7 @@ PSIK_API double psik_dk_dh(const psik_model *m, double h)
     if (h >= m->h_sat)
         return 0.0;
     point_at(f, m, -h, &p);
-    return clamp_pos(m->ks * p.dkr);
+    return psik__clamp_pos(m->ks * p.dkr);
 }
 
 PSIK_API void psik_eval(const psik_model *m, double h, psik_state *out)
@@ -137,13 +116,15 @@ PSIK_API void psik_eval(const psik_model *m, double h, psik_state *out)
         out->dk_dh = 0.0;
         return;
     }
+    if (f->eval != NULL && f->eval(m, -h, out))
+        return;
     point_at(f, m, -h, &p);
     out->se = p.se;
-    out->theta = theta_of(m, p.se);
+    out->theta = psik__theta_of(m, p.se);
     out->kr = p.kr;
     out->k = m->ks * p.kr;
-    out->capacity = clamp_pos((m->theta_s - m->theta_r) * p.dse);
-    out->dk_dh = clamp_pos(m->ks * p.dkr);
+    out->capacity = psik__clamp_pos((m->theta_s - m->theta_r) * p.dse);
+    out->dk_dh = psik__clamp_pos(m->ks * p.dkr);
 }
 
 /* NaN into every output given (batch calls without usable input). */
@@ -230,9 +211,9 @@ static void point_of_se(const psik_family *f, const psik_model *m, double se, ps
     if (f->point_se != NULL) {
         f->point_se(m, se, p);
         p->se = se;
-        p->kr = clamp01(p->kr);
-        p->dse = clamp_pos(p->dse);
-        p->dkr = clamp_pos(p->dkr);
+        p->kr = psik__clamp01(p->kr);
+        p->dse = psik__clamp_pos(p->dse);
+        p->dkr = psik__clamp_pos(p->dkr);
     } else {
         point_at(f, m, f->suction(m, se), p);
     }

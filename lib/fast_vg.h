@@ -1,11 +1,12 @@
-/* fast_vg.h - the fused van Genuchten point and its batch kernels
- * (lib/batch_vg.c), called from the rows in lib/vg.c. Not installed. */
+/* fast_vg.h - the fused van Genuchten point (lib/point_vg.c) and batch
+ * kernels (lib/batch_vg.c), called from the rows in lib/vg.c. Not
+ * installed. */
 #ifndef PSIK_FAST_VG_H
 #define PSIK_FAST_VG_H
 
 #include "psik_internal.h"
 
-/* The constants the fused point needs, in the notation of vg.c. */
+/* The constants the batch kernels need, in the notation of vg.c. */
 typedef struct psik_vgc {
     double alpha, n, m, k;   /* k = m n (exact: n - 1 or n - 2) */
     double l;                /* pore connectivity (Mualem) */
@@ -16,24 +17,27 @@ typedef struct psik_vgc {
 
 enum { PSIK_VGC_MUALEM = 1, PSIK_VGC_BURDINE, PSIK_VGC_MUALEM_AE };
 
-/* The point at suction s through the fused core (two logs, three exps for
- * l = 1/2). Returns 0, writing nothing, outside the core's range (suction
- * not positive and finite, or |n log(alpha s)| > 700): the caller then uses
- * its own path. Where it returns 1 the values keep the accuracy goal
- * (tests/unit/test_accuracy.c) and equal the batch kernel's bit for bit. */
-PSIK_HIDDEN int psik__vg_point_fast(const psik_vgc *c, double s, psik_point *out);
-
 /* Slots of psik_model.aux that the one-point code reads (lib/vg.c fills
  * them and names them A_*). */
 enum { PSIK_VGA_ALPHA = 0, PSIK_VGA_N = 1, PSIK_VGA_M = 2, PSIK_VGA_K = 3,
        PSIK_VGA_L = 8, PSIK_VGA_SC = 10, PSIK_VGA_GE = 11, PSIK_VGA_XE = 13 };
 
-/* The same point through lib/point_vg.c, the code built for one point at a
- * time, from the model's aux slots (model: PSIK_VGC_*): same contract and
- * range as psik__vg_point_fast, same accuracy goal; its values agree with
- * the batch kernel's to a few ulp, not bit for bit. psik_eval and the other
- * one-point functions use this one. */
+/* The point at suction s through lib/point_vg.c, the code built for one
+ * point at a time, from the model's aux slots (model: PSIK_VGC_*): the
+ * batch kernel's method (two logs, three exps for l = 1/2). Returns 0,
+ * writing nothing, outside the core's range (suction not positive and
+ * finite, or |n log(alpha s)| > 700): the caller then uses its own path.
+ * Where it returns 1 the values keep the accuracy goal
+ * (tests/unit/test_accuracy.c) and agree with the batch kernel's to a few
+ * ulp, not bit for bit. psik_eval and the other one-point functions use
+ * this. */
 PSIK_HIDDEN int psik__vg_point_scalar(const double *aux, int model, double s, psik_point *out);
+
+/* psik_family.eval of vgm, vgm_ae and vgb: that point, clamped and
+ * assembled into *out as eval.c does (same bits), or 0 where the point
+ * returns 0. */
+typedef int psik_eval_fn(const psik_model *m, double s, psik_state *out);
+PSIK_HIDDEN psik_eval_fn psik__vgm_eval_scalar, psik__vgm_ae_eval_scalar, psik__vgb_eval_scalar;
 
 /* psik_eval_batch for a van Genuchten row (see psik_family.batch). */
 PSIK_HIDDEN void psik__vg_batch(const psik_model *m, const psik_vgc *c, size_t count,

@@ -176,16 +176,18 @@ PSIK_FM double psik__sc_exp_dd(double x, double lo)
 
 /* exp(x + lo) and expm1(x + lo) for -700 <= x <= 0: expm1 = (sh - 1) + sh
  * s + sl (1 + s) + sh rl, the first two terms summed exactly (sh - 1 is
- * exact for e >= -1 and has no cancellation below), rl the rounding error
- * of the reduced argument (worth half an ulp of expm1 near 0 otherwise). */
+ * exact for e >= -1 and has no cancellation below; x <= 0 makes sh <= 1,
+ * so both sums are ordered), rl the rounding error of the reduced argument
+ * (worth half an ulp of expm1 near 0 otherwise). */
 PSIK_FM void psik__sc_exp_expm1_dd(double x, double lo, double *e, double *em1)
 {
     double sh, sl, s, rl, a, ea, p, pe, u, ue;
     psik__sc_exp_core(x, lo, &sh, &sl, &s, &rl);
     *e = sh + PSIK_SC_MAD(sh, s, sl);
-    psik__fm_two_sum(sh, -1.0, &a, &ea);
+    psik__fm_fast_two_sum(-1.0, sh, &a, &ea);      /* 0 < sh <= 1 */
     psik__fm_two_prod(sh, s, &p, &pe);
-    psik__fm_two_sum(a, p, &u, &ue);
+    /* ordered: a = 0 where sh = 1, else |a| >= 1 - 2^(-1/128) > |p| */
+    psik__fm_fast_two_sum(a, p, &u, &ue);
     *em1 = u + (ue + (ea + PSIK_SC_MAD(sl, 1.0 + s, PSIK_SC_MAD(sh, rl, pe))));
 }
 

@@ -132,10 +132,7 @@ PSIK_FM int sc_core(const double *aux, double s, int half, int model, psik_point
     return 1;
 }
 
-PSIK_HIDDEN int PSIK_ISA_FN(psik__vg_point_sc)(const double *aux, int model, double s,
-                                               psik_point *out);
-PSIK_HIDDEN int PSIK_ISA_FN(psik__vg_point_sc)(const double *aux, int model, double s,
-                                               psik_point *out)
+PSIK_FM int sc_dispatch(const double *aux, int model, double s, psik_point *out)
 {
     int half = aux[PSIK_VGA_L] == 0.5;
     if (model == PSIK_VGC_MUALEM)
@@ -147,12 +144,81 @@ PSIK_HIDDEN int PSIK_ISA_FN(psik__vg_point_sc)(const double *aux, int model, dou
     return sc_core(aux, s, 1, PSIK_VGC_BURDINE, out);   /* l = 1/2 by definition */
 }
 
+PSIK_HIDDEN int PSIK_ISA_FN(psik__vg_point_sc)(const double *aux, int model, double s,
+                                               psik_point *out);
+PSIK_HIDDEN int PSIK_ISA_FN(psik__vg_point_sc)(const double *aux, int model, double s,
+                                               psik_point *out)
+{
+    return sc_dispatch(aux, model, s, out);
+}
+
+/* psik_eval's unsaturated case (psik_family.eval): the point, clamped and
+ * assembled exactly as eval.c does, without the copies between. For the
+ * kinds whose values lie in range by construction (Se = exp of a
+ * non-positive number, Kr = Se^(1/2) g^2 or Se^2 g with 0 <= g = -expm1(<=
+ * 0) <= 1, dSe/dh finite: p >= DBL_MIN only on the wet side, where y/p =
+ * p^(n-1)/(1+x)) the clamps on Se, Kr and C are the identity and are left
+ * out; dK/dh, which overflows near saturation for n < 2, is clamped. */
+PSIK_FM int sc_eval(const psik_model *m, double s, int half, int model, psik_state *out)
+{
+    psik_point p;
+    double se, kr, cap;
+    int pure = half && model != PSIK_VGC_MUALEM_AE;
+    if (!sc_core(m->aux, s, half, model, &p))
+        return 0;
+    se = pure ? p.se : psik__clamp01(p.se);
+    kr = pure ? p.kr : psik__clamp01(p.kr);
+    cap = (m->theta_s - m->theta_r) * (pure ? p.dse : psik__clamp_pos(p.dse));
+    out->se = se;
+    out->theta = psik__theta_of(m, se);
+    out->kr = kr;
+    out->k = m->ks * kr;
+    out->capacity = pure ? cap : psik__clamp_pos(cap);
+    out->dk_dh = psik__clamp_pos(m->ks * psik__clamp_pos(p.dkr));
+    return 1;
+}
+
+PSIK_HIDDEN psik_eval_fn PSIK_ISA_FN(psik__vgm_eval), PSIK_ISA_FN(psik__vgm_ae_eval),
+    PSIK_ISA_FN(psik__vgb_eval);
+PSIK_HIDDEN int PSIK_ISA_FN(psik__vgm_eval)(const psik_model *m, double s, psik_state *out)
+{
+    return m->aux[PSIK_VGA_L] == 0.5 ? sc_eval(m, s, 1, PSIK_VGC_MUALEM, out)
+                                     : sc_eval(m, s, 0, PSIK_VGC_MUALEM, out);
+}
+PSIK_HIDDEN int PSIK_ISA_FN(psik__vgm_ae_eval)(const psik_model *m, double s, psik_state *out)
+{
+    return m->aux[PSIK_VGA_L] == 0.5 ? sc_eval(m, s, 1, PSIK_VGC_MUALEM_AE, out)
+                                     : sc_eval(m, s, 0, PSIK_VGC_MUALEM_AE, out);
+}
+PSIK_HIDDEN int PSIK_ISA_FN(psik__vgb_eval)(const psik_model *m, double s, psik_state *out)
+{
+    return sc_eval(m, s, 1, PSIK_VGC_BURDINE, out);
+}
+
 #if PSIK_ISA_BASE
 typedef int vg_point_sc_t(const double *aux, int model, double s, psik_point *out);
 PSIK_ISA_SELECT(vg_point_sc_t, psik__vg_point_sc)
+PSIK_ISA_SELECT(psik_eval_fn, psik__vgm_eval)
+PSIK_ISA_SELECT(psik_eval_fn, psik__vgm_ae_eval)
+PSIK_ISA_SELECT(psik_eval_fn, psik__vgb_eval)
 
 PSIK_HIDDEN int psik__vg_point_scalar(const double *aux, int model, double s, psik_point *out)
 {
     return psik__vg_point_sc_pick()(aux, model, s, out);
+}
+
+PSIK_HIDDEN int psik__vgm_eval_scalar(const psik_model *m, double s, psik_state *out)
+{
+    return psik__vgm_eval_pick()(m, s, out);
+}
+
+PSIK_HIDDEN int psik__vgm_ae_eval_scalar(const psik_model *m, double s, psik_state *out)
+{
+    return psik__vgm_ae_eval_pick()(m, s, out);
+}
+
+PSIK_HIDDEN int psik__vgb_eval_scalar(const psik_model *m, double s, psik_state *out)
+{
+    return psik__vgb_eval_pick()(m, s, out);
 }
 #endif

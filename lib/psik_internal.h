@@ -11,6 +11,8 @@
 
 #include "psik.h"
 
+#include <float.h>
+
 /* Internal helpers are static in the single-header build (which defines
  * PSIK_HIDDEN itself, see tools/mksingle.py), hidden otherwise. */
 #ifndef PSIK_HIDDEN
@@ -52,6 +54,12 @@ typedef struct psik_family {
     void (*prepare)(psik_model *m);
     /* All four values at suction s (fused). */
     void (*point)(const psik_model *m, double s, psik_point *out);
+    /* Optional (NULL: point, then eval.c's assembly). psik_eval's whole
+     * unsaturated case at suction s in one step, for kinds whose one-point
+     * code is worth the saved copies (lib/point_vg.c): fills out exactly
+     * as point plus eval.c's assembly would, or returns 0 without writing,
+     * and psik_eval takes the general path. */
+    int (*eval)(const psik_model *m, double s, psik_state *out);
     /* Single values at suction s. */
     double (*se)(const psik_model *m, double s);
     double (*kr)(const psik_model *m, double s);
@@ -67,6 +75,30 @@ typedef struct psik_family {
     void (*batch)(const psik_model *m, size_t count, const double *h,
                   double *theta, double *k, double *capacity, double *dk_dh);
 } psik_family;
+
+/* eval.c's clamps, shared with the code that assembles a psik_state
+ * itself. Finite and non-negative: an overflowed derivative becomes
+ * DBL_MAX, a negative rounding residue (or NaN from 0 * inf) 0; Se and Kr
+ * into [0, 1]. Written as selects of computed values, which compilers make
+ * branch-free (a min, then a masked blend). */
+static inline double psik__clamp_pos(double v)
+{
+    double t = v < DBL_MAX ? v : DBL_MAX;
+    return v >= 0.0 ? t : 0.0;
+}
+
+static inline double psik__clamp01(double v)
+{
+    double t = v < 1.0 ? v : 1.0;
+    return v > 0.0 ? t : 0.0;
+}
+
+/* theta = theta_r + (theta_s - theta_r) Se, at most theta_s. */
+static inline double psik__theta_of(const psik_model *m, double se)
+{
+    double t = m->theta_r + (m->theta_s - m->theta_r) * se;
+    return t > m->theta_s ? m->theta_s : t;
+}
 
 /* The table (kinds.c). */
 PSIK_HIDDEN const psik_family *psik__family(int kind);
