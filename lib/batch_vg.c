@@ -91,11 +91,8 @@ PSIK_FM int vg_core(const psik_vgc *c, double s, int half, int model,
         G = g / c->ge;
         dG = dg / c->ge;
     }
-    if (model == PSIK_VGC_BURDINE) {
-        double se2 = se * se;
-        kr = se2 * G;
-        dkr = se2 * (2.0 * G * dls + dG);
-    } else {
+    seL = 1.0;
+    if (model != PSIK_VGC_BURDINE) {
         if (half) {
             seL = sqrt(se);
         } else {
@@ -109,13 +106,12 @@ PSIK_FM int vg_core(const psik_vgc *c, double s, int half, int model,
             psik__fm_mul_dd(c->l, esh, esl, &lh, &ll);
             seL = psik__fm_exp_dd(lh, ll);
         }
-        kr = seL * G * G;
-        dkr = seL * G * (c->l * G * dls + 2.0 * dG);
-        if (!half) {   /* se^l overflows for l < 0 at the dry end */
-            ok = (seL <= DBL_MAX) & (G > 0.0);
-            kr = psik__fm_sel(ok, kr, 0.0);
-            dkr = psik__fm_sel(ok, dkr, 0.0);
-        }
+    }
+    psik__vg_kr_from(model, c->l, se, seL, G, dG, dls, &kr, &dkr);
+    if (model != PSIK_VGC_BURDINE && !half) {   /* se^l overflows for l < 0 at the dry end */
+        ok = (seL <= DBL_MAX) & (G > 0.0);
+        kr = psik__fm_sel(ok, kr, 0.0);
+        dkr = psik__fm_sel(ok, dkr, 0.0);
     }
     *se_o = se;
     *kr_o = kr;

@@ -17,6 +17,23 @@ typedef struct psik_vgc {
 
 enum { PSIK_VGC_MUALEM = 1, PSIK_VGC_BURDINE, PSIK_VGC_MUALEM_AE };
 
+/* Kr and dKr/dh from Se, Se^l, g (with its derivative dg) and dlnSe/dh:
+ * Burdine Se^2 g, Mualem Se^l g^2, as the batch kernel and the one-point
+ * code both assemble them (small enough to be inlined into the vector
+ * loop). */
+static inline void psik__vg_kr_from(int model, double l, double se, double seL, double g,
+                                    double dg, double dls, double *kr, double *dkr)
+{
+    if (model == PSIK_VGC_BURDINE) {
+        double se2 = se * se;
+        *kr = se2 * g;
+        *dkr = se2 * (2.0 * g * dls + dg);
+    } else {
+        *kr = seL * g * g;
+        *dkr = seL * g * (l * g * dls + 2.0 * dg);
+    }
+}
+
 /* Slots of psik_model.aux that the one-point code reads (lib/vg.c fills
  * them and names them A_*). */
 enum { PSIK_VGA_ALPHA = 0, PSIK_VGA_N = 1, PSIK_VGA_M = 2, PSIK_VGA_K = 3,

@@ -100,11 +100,8 @@ PSIK_FM int sc_core(const double *aux, double s, int half, int model, psik_point
         G = g / aux[PSIK_VGA_GE];
         dG = dg / aux[PSIK_VGA_GE];
     }
-    if (model == PSIK_VGC_BURDINE) {
-        double se2 = se * se;
-        kr = se2 * G;
-        dkr = se2 * (2.0 * G * dls + dG);
-    } else {
+    seL = 1.0;
+    if (model != PSIK_VGC_BURDINE) {
         if (half) {
             seL = sqrt(se);
         } else {
@@ -122,9 +119,8 @@ PSIK_FM int sc_core(const double *aux, double s, int half, int model, psik_point
                 return 0;
             seL = psik__sc_exp_dd(lh, ll);
         }
-        kr = seL * G * G;
-        dkr = seL * G * (l * G * dls + 2.0 * dG);
     }
+    psik__vg_kr_from(model, l, se, seL, G, dG, dls, &kr, &dkr);
     out->se = se;
     out->kr = kr;
     out->dse = dls * se;
