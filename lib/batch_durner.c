@@ -307,17 +307,9 @@ PSIK_FM void dn_block_body(const dn_blk *bk, int nm, int half, int cnt,
     const double h_sat = bk->h_sat, tr = bk->tr, dts = bk->dts, ts = bk->ts, ks = bk->ks;
     int i;
     for (i = 0; i < cnt; i++) {
-        double hi = h[i], se, kr, dse, dkr, t;
+        double hi = h[i], se, kr, dse, dkr;
         int ok = dn_core(bk->c, NULL, nm, half, -hi, &se, &kr, &dse, &dkr);
-        se = psik__fb_01(se);
-        kr = psik__fb_01(kr);
-        dse = psik__fb_pos(dse);
-        dkr = psik__fb_pos(dkr);
-        t = tr + dts * se;
-        th[i] = psik__fm_sel(t > ts, ts, t);
-        kk[i] = ks * kr;
-        cc[i] = psik__fb_pos(dts * dse);
-        dk[i] = psik__fb_pos(ks * dkr);
+        psik__fb_lane(tr, dts, ts, ks, se, kr, dse, dkr, th + i, kk + i, cc + i, dk + i);
         bad[i] = (uint64_t)(!(hi < h_sat) | !ok);
     }
 }

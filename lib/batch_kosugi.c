@@ -208,17 +208,9 @@ PSIK_FM void kb_block_body(const kb_blk *bk, int half, int cnt, const double *re
     const double *a = bk->a;
     int i;
     for (i = 0; i < cnt; i++) {
-        double hi = h[i], se, kr, dse, dkr, t;
+        double hi = h[i], se, kr, dse, dkr;
         int se_ok, ok = kb_core(a, -hi, half, &se, &kr, &dse, &dkr, &se_ok);
-        se = psik__fb_01(se);
-        kr = psik__fb_01(kr);
-        dse = psik__fb_pos(dse);
-        dkr = psik__fb_pos(dkr);
-        t = tr + dts * se;
-        th[i] = psik__fm_sel(t > ts, ts, t);
-        kk[i] = ks * kr;
-        cc[i] = psik__fb_pos(dts * dse);
-        dk[i] = psik__fb_pos(ks * dkr);
+        psik__fb_lane(tr, dts, ts, ks, se, kr, dse, dkr, th + i, kk + i, cc + i, dk + i);
         bad[i] = (uint64_t)(!(hi < h_sat) | !ok);
     }
 }

@@ -74,4 +74,24 @@ PSIK_FM double psik__fb_theta(const psik_model *m, double se)
     return psik__fm_sel(t > m->theta_s, m->theta_s, t);
 }
 
+/* eval.c's clamps and assembly of one lane (psik_eval's values from the
+ * point's Se, Kr and derivatives): theta, K, C and dK/dh. tr, dts, ts and
+ * ks are the model's theta_r, theta_s - theta_r, theta_s and ks, held in
+ * locals by the block outside its loop. */
+PSIK_FM void psik__fb_lane(double tr, double dts, double ts, double ks, double se, double kr,
+                           double dse, double dkr, double *th, double *kk, double *cc,
+                           double *dk)
+{
+    double t;
+    se = psik__fb_01(se);
+    kr = psik__fb_01(kr);
+    dse = psik__fb_pos(dse);
+    dkr = psik__fb_pos(dkr);
+    t = tr + dts * se;
+    *th = psik__fm_sel(t > ts, ts, t);
+    *kk = ks * kr;
+    *cc = psik__fb_pos(dts * dse);
+    *dk = psik__fb_pos(ks * dkr);
+}
+
 #endif
