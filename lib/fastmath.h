@@ -273,6 +273,21 @@ PSIK_FM double psik__fm_expm1(double x)
     return psik__fm_sel(x == 0.0, x, em1);       /* keeps the sign of -0 */
 }
 
+/* The reduction both forms of psik__fm_log_dd_nrm start from: x = 2^k z
+ * with z in [sqrt(2)/2, sqrt(2)) from the bits (normal finite x > 0), k
+ * as a double, and sk = 2^-k for the low part (k of a normal x is in
+ * [-1022, 1023]: 2^-k is normal except at k = 1023, where xl 2^-k only
+ * loses digits far below the result's ulp). */
+PSIK_FM double psik__fm_log_split(double x, double *k, double *sk)
+{
+    uint64_t ix = psik__fm_bits(x);
+    uint64_t tmp = ix - 0x3fe6a09e667f3bcdULL + 0x8000000000000000ULL;
+    uint64_t kk = tmp >> 52;                              /* k + 2048 */
+    *k = psik__fm_double(0x4330000000000000ULL | kk) - 4503599627370496.0 - 2048.0;
+    *sk = psik__fm_double((3071u - kk) << 52);
+    return psik__fm_double(ix - ((kk - 2048u) << 52));
+}
+
 #if defined(__FMA__)
 /* log(x + xl) as hi + lo for normal finite x > 0 and |xl| <= ulp(x),
  * absolute error below 2^-58 (and relative below 2^-58 when 0.707 < x <
@@ -292,13 +307,7 @@ PSIK_FM double psik__fm_expm1(double x)
  * the result, so that what is rounded is below 2^-14 of it. */
 PSIK_FM double psik__fm_log_dd_nrm(double x, double xl, double *lo)
 {
-    uint64_t ix = psik__fm_bits(x);
-    uint64_t tmp = ix - 0x3fe6a09e667f3bcdULL + 0x8000000000000000ULL;
-    uint64_t kk = tmp >> 52;                              /* k + 2048 */
-    uint64_t iz = ix - ((kk - 2048u) << 52);
-    double z = psik__fm_double(iz);
-    double k = psik__fm_double(0x4330000000000000ULL | kk) - 4503599627370496.0 - 2048.0;
-    double sk = psik__fm_double((3071u - kk) << 52);      /* 2^-k, as below */
+    double k, sk, z = psik__fm_log_split(x, &k, &sk);
     double f = z - 1.0;                                   /* exact */
     double d = z + 1.0, dl = z - (d - 1.0);               /* d + dl = z + 1 exactly */
     double zl = xl * sk;
@@ -341,16 +350,7 @@ PSIK_FM double psik__fm_log_dd_nrm(double x, double xl, double *lo)
  * r^4/7) for |r| <= 0.0055 (truncation below 2^-63). */
 PSIK_FM double psik__fm_log_dd_nrm(double x, double xl, double *lo)
 {
-    uint64_t ix = psik__fm_bits(x);
-    uint64_t tmp = ix - 0x3fe6a09e667f3bcdULL + 0x8000000000000000ULL;
-    uint64_t kk = tmp >> 52;                              /* k + 2048 */
-    uint64_t iz = ix - ((kk - 2048u) << 52);
-    double z = psik__fm_double(iz);
-    double k = psik__fm_double(0x4330000000000000ULL | kk) - 4503599627370496.0 - 2048.0;
-    /* 2^-k for the low part (k of a normal x is in [-1022, 1023]: 2^-k is
-     * normal except at k = 1023, where xl 2^-k only loses digits far below
-     * the result's ulp) */
-    double sk = psik__fm_double((3071u - kk) << 52);
+    double k, sk, z = psik__fm_log_split(x, &k, &sk);
     double jd = z * 128.0 + PSIK_FM_SHIFT;
     uint64_t j = (psik__fm_bits(jd) - psik__fm_bits(PSIK_FM_SHIFT)) - PSIK_FM_LOG_J0;
     double c = (jd - PSIK_FM_SHIFT) * (1.0 / 128.0);
