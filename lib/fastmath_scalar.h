@@ -27,19 +27,27 @@
  *        The low part may be as large as the log's (it enters r before
  *        the polynomial). For -700 <= x <= 708 (every caller's range):
  *        within 1 ulp (the final rounding plus about 2^-60).
- *   expm1 (with exp, one reduction): (2^e thi - 1) + 2^e thi (e^r - 1) +
- *        2^e tlo e^r, the first two summed exactly, so cancellation near 0
- *        costs nothing.
+ *   expm1 (with exp, one reduction): (2^e thi - 1) + (2^e thi (e^r - 1) +
+ *        2^e tlo + the reduction's rounding error), the first difference
+ *        exact where cancellation could hurt.
+ *   log1p(exp(x)) (x <= 0, the softplus step of the van Genuchten point):
+ *        one reduction x = -q ln2/32 + rho, log1p(2^(-q/32)) from a table
+ *        (or a series past it), and the rest as a series in rho whose
+ *        coefficients are the cumulants of a Bernoulli variable; see the
+ *        function.
  *
  * Measured against glibc's long double functions by
  * tests/unit/test_fastmath_scalar.c, built with and without fused
  * multiply-adds: log pair 2^-64 absolute (the reference's limit), exp 0.74
- * ulp, expm1 0.96 ulp, log1p 0.87 ulp.
+ * ulp, expm1 1.12 ulp, log1p 0.87 ulp, log1p(exp) pair 2^-57.7 relative.
  *
- * Selects: psik__sc_sel_le(x, y, a, b) = x <= y ? a : b without a branch
- * (an unpredictable wet/dry branch would cost more than the blend) and
- * without the round trip through integer registers that psik__fm_sel
- * makes outside a vector loop.
+ * Selects: psik__sc_sel_le(x, y, a, b) = x <= y ? a : b, a plain ternary
+ * that compilers make a blend or a branch as they judge. Blends forced
+ * through vector masks measured slower here (AMD Zen 5, GCC 12: 46 against
+ * 40 ns a vgm point on make bench's heads, and no faster on heads in
+ * random order without repetition), so the choice is left to the
+ * compiler; lib/point_vg.c forms the wet/dry sign with copysign instead,
+ * where the branch GCC chose cost 10 % on random heads.
  */
 #ifndef PSIK_FASTMATH_SCALAR_H
 #define PSIK_FASTMATH_SCALAR_H
@@ -56,14 +64,13 @@
 #  define PSIK_SC_MAD(a, b, c) ((a) * (b) + (c))
 #endif
 
-/* x <= y ? a : b. Compilers turn this into a blend (both operands are
- * already computed values): an unpredictable wet/dry branch would cost
- * more, and psik__fm_sel's bit operations take a round trip through
- * integer registers outside a vector loop. */
+/* x <= y ? a : b (see the note above; psik__fm_sel's bit operations take
+ * a round trip through integer registers outside a vector loop). */
 PSIK_FM double psik__sc_sel_le(double x, double y, double a, double b)
 {
     return x <= y ? a : b;
 }
+
 
 /* The log core: log(x + xl) as hi + lo for normal finite x > 0 and |xl|
  * <= ulp(x) (xl enters as xl 2^-k (1/c) (1 - r); has_xl = 0, a constant
@@ -174,21 +181,98 @@ PSIK_FM double psik__sc_exp_dd(double x, double lo)
     return sh + PSIK_SC_MAD(sh, s, sl);
 }
 
-/* exp(x + lo) and expm1(x + lo) for -700 <= x <= 0: expm1 = (sh - 1) + sh
- * s + sl (1 + s) + sh rl, the first two terms summed exactly (sh - 1 is
- * exact for e >= -1 and has no cancellation below; x <= 0 makes sh <= 1,
- * so both sums are ordered), rl the rounding error of the reduced argument
- * (worth half an ulp of expm1 near 0 otherwise). */
+#define PSIK_SC_32_LN2 46.166241308446828    /* 32 / ln 2 */
+
+/* log1p(exp(x + xl)) as hi + *lo, and *ea = exp(x + xl), for -700 <= x <=
+ * 0 and |xl| <= ulp(x) (the softplus of a van Genuchten exponent; one step
+ * where log1p(exp(.)) would be two on the dependency chain).
+ *
+ * x + xl = -q ln2/32 + rho, |rho| <= ln2/64 (q = round(-32 x / ln 2),
+ * rho formed as the exp core forms its r). With c = 2^(-q/32) and v = c /
+ * (1 + c),
+ *   log1p(e^(x+xl)) = log1p(c) + log(1 - v + v e^rho)
+ * and the second term is the cumulant generating function of a Bernoulli
+ * variable of mean v at rho: sum over j of kappa_j rho^j / j!, kappa_1 = v,
+ * kappa_2 = w = v (1 - v), kappa_3 = w d (d = 1 - 2v), kappa_4 = w (1 -
+ * 6w), kappa_5 = w d (1 - 12w), kappa_6 = w (1 - 30w + 120w^2), kappa_7 = w
+ * d (1 - 60w + 360w^2) (checked against mpmath's Taylor coefficients by
+ * tests/unit/test_fastmath_scalar.c's reference, which is independent of
+ * them); to rho^7 the truncation is below 2^-66 relative (|kappa_8| <=
+ * 1.07, and kappa_8 ~ v where v is small). log1p(c) and v come from the
+ * table for c >= 2^-14 (q < PSIK_SC_L1PE_N) and from series in c = ch + cl
+ * (2^(-q/32) from fastmath.h's exp table) below: log1p(c) = c - c^2/2 +
+ * c^3/3 - c^4/4 + c^5/5 (next term below 2^-70 relative), v = c (1 - c (1 -
+ * c (1 - c))) (error c^4 <= 2^-56 relative to v, which enters the result
+ * multiplied by |rho| <= 2^-6.5). Every term beyond log1p(c) is at most
+ * 1.1 % of the result, so the sum has no cancellation, and the result
+ * keeps its relative accuracy down to x = -700 (where it equals e^x): hi +
+ * lo within 2^-57 relative (measured 2^-57.7, just past the table's end). e^(x+xl) = c e^rho with e^rho - 1 to
+ * rho^7, within 1 ulp. */
+PSIK_FM double psik__sc_log1p_exp_dd(double x, double xl, double *ea, double *lo)
+{
+#if defined(__FMA__)
+    double sh = __builtin_fma(x, PSIK_SC_32_LN2, PSIK_FM_SHIFT);
+#else
+    double sh = x * PSIK_SC_32_LN2 + PSIK_FM_SHIFT;
+#endif
+    /* round(32 x / ln 2) = -q, biased: ku = 32 (E + 1023) + j, c = 2^E
+     * 2^(j/32) */
+    uint64_t ku = psik__fm_bits(sh) - psik__fm_bits(PSIK_FM_SHIFT) + (1023u << 5);
+    uint64_t iq = (1023u << 5) - ku;                                  /* q >= 0 */
+    double k = sh - PSIK_FM_SHIFT;                                    /* -q */
+    double r0 = PSIK_SC_MAD(-k, PSIK_FM_LN2HI / 32.0, x);            /* exact */
+    double rho = r0 + PSIK_SC_MAD(-k, PSIK_FM_LN2LO / 32.0, xl);
+    uint64_t j = ku & 31u;
+    double scale = psik__fm_double((ku >> 5) << 52);                 /* 2^E, normal */
+    double ch = psik__fm_exp_tab[8 * j] * scale, cl = psik__fm_exp_tab[8 * j + 1] * scale;
+    /* index min(q, N - 1) by arithmetic (a compare here becomes a branch
+     * around the loads): over = all ones where q > N - 1 */
+    const double *t = psik__sc_l1pe_tab + 3 * (iq < PSIK_SC_L1PE_N ? iq : PSIK_SC_L1PE_N - 1);
+    double c2 = ch * ch;
+    double sl = PSIK_SC_MAD(c2, PSIK_SC_MAD(ch, PSIK_SC_MAD(ch, PSIK_SC_MAD(ch, 0.2, -0.25),
+                                                            1.0 / 3.0), -0.5), cl);
+    double sv = ch * PSIK_SC_MAD(-ch, PSIK_SC_MAD(-ch, PSIK_SC_MAD(-ch, 1.0, 1.0), 1.0), 1.0);
+    /* the table for q < N (c >= 2^-14); -k = q as a double */
+    double lh = psik__sc_sel_le(-k, PSIK_SC_L1PE_N - 1.0, t[0], ch);
+    double ll = psik__sc_sel_le(-k, PSIK_SC_L1PE_N - 1.0, t[1], sl);
+    double v = psik__sc_sel_le(-k, PSIK_SC_L1PE_N - 1.0, t[2], sv);
+    double w = PSIK_SC_MAD(-v, v, v), d = PSIK_SC_MAD(-2.0, v, 1.0);
+    double wd = w * d;
+    double k2 = 0.5 * w;
+    double k3 = wd * (1.0 / 6.0);
+    double k4 = w * PSIK_SC_MAD(w, -0.25, 1.0 / 24.0);
+    double k5 = wd * PSIK_SC_MAD(w, -0.1, 1.0 / 120.0);
+    double k6 = w * PSIK_SC_MAD(w, PSIK_SC_MAD(w, 1.0 / 6.0, -1.0 / 24.0), 1.0 / 720.0);
+    double k7 = wd * PSIK_SC_MAD(w, PSIK_SC_MAD(w, 1.0 / 14.0, -1.0 / 84.0), 1.0 / 5040.0);
+    double r2 = rho * rho, r4 = r2 * r2;
+    double P = PSIK_SC_MAD(r2, PSIK_SC_MAD(r2, PSIK_SC_MAD(rho, k7, k6), PSIK_SC_MAD(rho, k5, k4)),
+                           PSIK_SC_MAD(rho, k3, k2));
+    double X = PSIK_SC_MAD(rho, v, PSIK_SC_MAD(r2, P, ll));
+    double s = PSIK_SC_MAD(r4, PSIK_SC_MAD(r2, PSIK_SC_MAD(rho, 1.0 / 5040.0, 1.0 / 720.0),
+                                           PSIK_SC_MAD(rho, 1.0 / 120.0, 1.0 / 24.0)),
+                           PSIK_SC_MAD(r2, PSIK_SC_MAD(rho, 1.0 / 6.0, 0.5), rho));
+    double hi = lh + X;
+    *lo = (lh - hi) + X;                 /* ordered: |X| <= 0.011 lh */
+    *ea = ch + PSIK_SC_MAD(ch, s, cl);
+    return hi;
+}
+
+/* exp(x + lo) and expm1(x + lo) for -700 <= x <= 0: expm1 = (sh - 1) +
+ * (sh s + (sl + sh rl)), rl the rounding error of the reduced argument
+ * (worth half an ulp of expm1 near 0 otherwise; sl s is below 2^-60 of
+ * the result and left out). Where k = 0, sh = 1 and sl = 0, so expm1 = s
+ * + rl in one rounding. Elsewhere |x| >= ln 2 / 256, sh - 1 is exact (sh in
+ * [1/2, 1)) or rounded by at most half an ulp of the result (sh < 1/2, the
+ * result near -1), and |sh s| <= 2^-8.5 is at most as large as the result:
+ * the two remaining roundings keep the error near 1 ulp (measured by
+ * tests/unit/test_fastmath_scalar.c), without the exact sums a full
+ * double-double expm1 would add to the dependency chain. */
 PSIK_FM void psik__sc_exp_expm1_dd(double x, double lo, double *e, double *em1)
 {
-    double sh, sl, s, rl, a, ea, p, pe, u, ue;
+    double sh, sl, s, rl;
     psik__sc_exp_core(x, lo, &sh, &sl, &s, &rl);
     *e = sh + PSIK_SC_MAD(sh, s, sl);
-    psik__fm_fast_two_sum(-1.0, sh, &a, &ea);      /* 0 < sh <= 1 */
-    psik__fm_two_prod(sh, s, &p, &pe);
-    /* ordered: a = 0 where sh = 1, else |a| >= 1 - 2^(-1/128) > |p| */
-    psik__fm_fast_two_sum(a, p, &u, &ue);
-    *em1 = u + (ue + (ea + PSIK_SC_MAD(sl, 1.0 + s, PSIK_SC_MAD(sh, rl, pe))));
+    *em1 = (sh - 1.0) + PSIK_SC_MAD(sh, s, PSIK_SC_MAD(sh, rl, sl));
 }
 
 #endif

@@ -14,11 +14,13 @@
  * select on the wet/dry side.
  *
  * What differs from the batch kernel is the arithmetic: this code runs one
- * point at a time, so its cost is the length of its dependency chain (log,
- * exp, log1p, exp in a row), and it uses fastmath_scalar.h (table-driven,
- * exact reductions, short polynomials; b in plain double, which its uses
- * allow: m b enters ln Se and ln y^m as an absolute error m |db| <= 2^-53,
- * and g ~ m b where y^m -> 1 keeps b's relative error). Its values meet
+ * point at a time, so its cost is the length of its dependency chain, and
+ * it uses fastmath_scalar.h (table-driven, exact reductions, short
+ * polynomials). a and b come from one step, psik__sc_log1p_exp_dd, not
+ * from an exp and then a log1p: the chain is log, log1p(exp), exp. b is a
+ * pair good to 2^-57 relative (its uses need less: m b enters ln Se and ln
+ * y^m as an absolute error, and g ~ m b where y^m -> 1 keeps b's relative
+ * error). Its values meet
  * the same accuracy goal (tests/unit/test_accuracy.c measures psik_eval and
  * psik_eval_batch separately) and agree with the batch kernel's to a few
  * ulp (tests/unit/test_isa.c checks 1e-14 relative); they are not the same
@@ -59,11 +61,10 @@ PSIK_FM int sc_core(const double *aux, double s, int half, int model, psik_point
         return 0;
     /* -|t| in two parts, with sg = +1 on the wet side (t <= 0), -1 on the
      * dry side (exact products) */
-    sg = psik__sc_sel_le(th, 0.0, 1.0, -1.0);
+    sg = copysign(1.0, -th);
     ah = -fabs(th);
     al = tl * sg;
-    a = psik__sc_exp_dd(ah, al);
-    bh = psik__sc_log1p_dd(a, &bl);
+    bh = psik__sc_log1p_exp_dd(ah, al, &a, &bl);   /* b = log1p(a), a = e^(-|t|) */
     sc_mul(m, bh, bl, &mbh, &mbl);                  /* m b */
     sc_mul(k * sg, lph, lpl, &kh, &kl);            /* sign(-t) k lp */
     psik__fm_two_sum(kh, -mbh, &dh, &dl);

@@ -1,5 +1,7 @@
 #!/usr/bin/python3
-"""Write lib/fastmath_scalar_tables.h: the log table of lib/fastmath_scalar.h.
+"""Write lib/fastmath_scalar_tables.h: the two tables of lib/fastmath_scalar.h.
+
+The log table:
 
 The octave [z0, 2 z0), z0 just above sqrt(2)/2, is cut into 128 pieces of
 equal width in the bits of the double (2^45 units of the representation,
@@ -20,6 +22,15 @@ lies in the middle of its piece. For each piece i:
   lcl   -log(invc) - lch rounded to double,
 from mpmath at 60 digits.
 
+The log1p(exp) table, for psik__sc_log1p_exp_dd: with c_q = 2^(-q/32) (the
+exact power, q = 0 .. L1PE_N - 1, so c_q >= 2^-14 over the table),
+
+  lh, ll  log1p(c_q) = lh + ll, lh rounded to double, ll the rest rounded,
+  v       c_q / (1 + c_q) rounded to double,
+
+from mpmath at 60 digits. Beyond the table (c_q < 2^-14) the function forms
+the same three values from c_q by short series.
+
 Run: /usr/bin/python3 tools/gen_scalar_tables.py > lib/fastmath_scalar_tables.h
 """
 import math
@@ -30,6 +41,7 @@ from fractions import Fraction
 import mpmath
 
 mpmath.mp.dps = 60
+L1PE_N = 14 * 32   # the log1p(exp) table: c = 2^(-q/32) >= 2^-14
 
 
 def bits(x):
@@ -100,6 +112,19 @@ def main():
     out.append("static const double psik__sc_log_tab[128 * 3] = {")
     for invc, lch, lcl in rows:
         out.append("    %s, %s, %s," % (invc.hex(), lch.hex(), lcl.hex()))
+    out.append("};")
+    out.append("")
+    out.append("/* log1p(exp) table: per q = 0 .. %d, log1p(c) = lh + ll and c / (1 + c)," % (L1PE_N - 1))
+    out.append(" * c = 2^(-q/32) (see tools/gen_scalar_tables.py). */")
+    out.append("#define PSIK_SC_L1PE_N %d" % L1PE_N)
+    out.append("static const double psik__sc_l1pe_tab[PSIK_SC_L1PE_N * 3] = {")
+    for q in range(L1PE_N):
+        c = mpmath.power(2, mpmath.mpf(-q) / 32)
+        lp = mpmath.log1p(c)
+        lh = float(lp)
+        ll = float(lp - mpmath.mpf(lh))
+        v = float(c / (1 + c))
+        out.append("    %s, %s, %s," % (lh.hex(), ll.hex(), v.hex()))
     out.append("};")
     out.append("")
     out.append("#endif")
