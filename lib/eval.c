@@ -11,11 +11,15 @@
 #include <float.h>
 #include <math.h>
 
+/* psik__family(m->kind) without the call into kinds.c (1.3 ns of a 36 ns
+ * vgm psik_eval). */
+extern const psik_family *const psik__families[PSIK__NFAMILIES];
+
 static const psik_family *fam(const psik_model *m)
 {
-    if (m == NULL)
+    if (m == NULL || m->kind <= 0 || m->kind >= PSIK__NFAMILIES)
         return NULL;
-    return psik__family(m->kind);
+    return psik__families[m->kind];
 }
 
 /* Unsaturated point with clamping; s > 0. Inlined: psik_eval's own cost

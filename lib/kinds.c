@@ -1,8 +1,9 @@
 /* kinds.c - the table of kinds: names, parameters, ranges, validation, init.
  *
  * Adding a model family: write lib/<family>.c defining a psik_family, declare
- * it below and add it to families[] at the index of its psik_kind. Nothing
- * else in the library switches on the kind.
+ * it below, add it to psik__families[] at the index of its psik_kind and
+ * raise PSIK__NFAMILIES (psik_internal.h). Nothing else in the library
+ * switches on the kind.
  */
 #include "psik_internal.h"
 
@@ -22,7 +23,9 @@ extern const psik_family psik__fam_durner2;
 extern const psik_family psik__fam_durner3;
 extern const psik_family psik__fam_gardner;
 
-static const psik_family *const families[] = {
+/* Not static: eval.c looks kinds up in it directly (hidden like every
+ * internal name by -fvisibility=hidden; static in the single header). */
+const psik_family *const psik__families[PSIK__NFAMILIES] = {
     NULL,                  /* 0: no kind */
     &psik__fam_vgm,        /* PSIK_VGM */
     &psik__fam_vgm_ae,     /* PSIK_VGM_AE */
@@ -36,13 +39,11 @@ static const psik_family *const families[] = {
     &psik__fam_gardner,    /* PSIK_GARDNER */
 };
 
-#define NFAMILIES ((int)(sizeof families / sizeof families[0]))
-
 PSIK_HIDDEN const psik_family *psik__family(int kind)
 {
-    if (kind <= 0 || kind >= NFAMILIES)
+    if (kind <= 0 || kind >= PSIK__NFAMILIES)
         return NULL;
-    return families[kind];
+    return psik__families[kind];
 }
 
 PSIK_HIDDEN psik_status psik__fail(char *msg, size_t cap, psik_status st,
@@ -93,8 +94,8 @@ PSIK_API psik_kind psik_kind_from_name(const char *name)
     int k;
     if (name == NULL)
         return (psik_kind)0;
-    for (k = 1; k < NFAMILIES; k++)
-        if (families[k] != NULL && strcmp(families[k]->name, name) == 0)
+    for (k = 1; k < PSIK__NFAMILIES; k++)
+        if (psik__families[k] != NULL && strcmp(psik__families[k]->name, name) == 0)
             return (psik_kind)k;
     return (psik_kind)0;
 }

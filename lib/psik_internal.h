@@ -100,7 +100,9 @@ static inline double psik__theta_of(const psik_model *m, double se)
     return t > m->theta_s ? m->theta_s : t;
 }
 
-/* The table (kinds.c). */
+/* The table (kinds.c): psik__families[kind] for 0 < kind <
+ * PSIK__NFAMILIES, NULL otherwise. */
+#define PSIK__NFAMILIES 11
 PSIK_HIDDEN const psik_family *psik__family(int kind);
 
 /* Message helper: writes a formatted sentence into msg (snprintf). */
