@@ -138,6 +138,26 @@ PSIK_FM double psik__sc_log1p(double x)
 
 #define PSIK_SC_INVLN2_128 184.66496523378731    /* 128 / ln 2 */
 
+/* The reduction both exp steps share: x + lo = k ln2 / 2^b + r0 + w with k
+ * = round(x inv), inv = 2^b / ln 2; r0 = x - k ln2_hi / 2^b
+ * exact (ln2_hi has 32 bits, |k| < 2^17), w = lo - k ln2_lo / 2^b; ku = k +
+ * 1023 2^b, so that ku >> b is the biased exponent of 2^floor(k / 2^b)
+ * and ku & (2^b - 1) the table index. */
+PSIK_FM void psik__sc_reduce(double x, double lo, double inv, unsigned b, uint64_t *ku,
+                             double *k, double *r0, double *w)
+{
+#if defined(__FMA__)
+    double sh = __builtin_fma(x, inv, PSIK_FM_SHIFT);
+#else
+    double sh = x * inv + PSIK_FM_SHIFT;
+#endif
+    double kd = sh - PSIK_FM_SHIFT;
+    *ku = psik__fm_bits(sh) - psik__fm_bits(PSIK_FM_SHIFT) + ((uint64_t)1023u << b);
+    *k = kd;
+    *r0 = PSIK_SC_MAD(-kd, PSIK_FM_LN2HI / (double)(1u << b), x);
+    *w = PSIK_SC_MAD(-kd, PSIK_FM_LN2LO / (double)(1u << b), lo);
+}
+
 /* The exp core at x + lo, |x| <= 708, |lo| <= 1e-4 (any pair the log core
  * or a product of one gives): k = round(128 x / ln 2), r = (x - k ln2_hi /
  * 128) + (lo - k ln2_lo / 128) with the first part exact; e^r = 1 + s;
@@ -146,16 +166,10 @@ PSIK_FM double psik__sc_log1p(double x)
 PSIK_FM void psik__sc_exp_core(double x, double lo, double *sh_o, double *sl_o, double *s_o,
                                double *rl_o)
 {
-#if defined(__FMA__)
-    double sh = __builtin_fma(x, PSIK_SC_INVLN2_128, PSIK_FM_SHIFT);
-#else
-    double sh = x * PSIK_SC_INVLN2_128 + PSIK_FM_SHIFT;
-#endif
-    uint64_t ku = psik__fm_bits(sh) - psik__fm_bits(PSIK_FM_SHIFT) + (1023u << 7);
-    double k = sh - PSIK_FM_SHIFT;
-    double r0 = PSIK_SC_MAD(-k, PSIK_FM_LN2HI / 128.0, x);         /* exact */
-    double w = PSIK_SC_MAD(-k, PSIK_FM_LN2LO / 128.0, lo);
-    double r = r0 + w, r2, p1, p2, p3, P, bb;
+    uint64_t ku;
+    double k, r0, w, r, r2, p1, p2, p3, P, bb;
+    psik__sc_reduce(x, lo, PSIK_SC_INVLN2_128, 7, &ku, &k, &r0, &w);
+    r = r0 + w;
     uint64_t j = ku & 127u;
     double scale = psik__fm_double((ku >> 7) << 52);              /* 2^e, normal */
     r2 = r * r;
@@ -206,27 +220,21 @@ PSIK_FM double psik__sc_exp_dd(double x, double lo)
  * multiplied by |rho| <= 2^-6.5). Every term beyond log1p(c) is at most
  * 1.1 % of the result, so the sum has no cancellation, and the result
  * keeps its relative accuracy down to x = -700 (where it equals e^x): hi +
- * lo within 2^-57 relative (measured 2^-57.7, just past the table's end). e^(x+xl) = c e^rho with e^rho - 1 to
- * rho^7, within 1 ulp. */
+ * lo within 2^-57 relative (measured 2^-57.7, just past the table's end).
+ * e^(x+xl) = c e^rho with e^rho - 1 to rho^7, within 1 ulp. */
 PSIK_FM double psik__sc_log1p_exp_dd(double x, double xl, double *ea, double *lo)
 {
-#if defined(__FMA__)
-    double sh = __builtin_fma(x, PSIK_SC_32_LN2, PSIK_FM_SHIFT);
-#else
-    double sh = x * PSIK_SC_32_LN2 + PSIK_FM_SHIFT;
-#endif
-    /* round(32 x / ln 2) = -q, biased: ku = 32 (E + 1023) + j, c = 2^E
-     * 2^(j/32) */
-    uint64_t ku = psik__fm_bits(sh) - psik__fm_bits(PSIK_FM_SHIFT) + (1023u << 5);
-    uint64_t iq = (1023u << 5) - ku;                                  /* q >= 0 */
-    double k = sh - PSIK_FM_SHIFT;                                    /* -q */
-    double r0 = PSIK_SC_MAD(-k, PSIK_FM_LN2HI / 32.0, x);            /* exact */
-    double rho = r0 + PSIK_SC_MAD(-k, PSIK_FM_LN2LO / 32.0, xl);
+    /* k = round(32 x / ln 2) = -q; ku = 32 (E + 1023) + j, c = 2^E 2^(j/32) */
+    uint64_t ku, iq;
+    double k, r0, w0, rho;
+    psik__sc_reduce(x, xl, PSIK_SC_32_LN2, 5, &ku, &k, &r0, &w0);
+    iq = (1023u << 5) - ku;                                           /* q >= 0 */
+    rho = r0 + w0;
     uint64_t j = ku & 31u;
     double scale = psik__fm_double((ku >> 5) << 52);                 /* 2^E, normal */
     double ch = psik__fm_exp_tab[8 * j] * scale, cl = psik__fm_exp_tab[8 * j + 1] * scale;
-    /* index min(q, N - 1) by arithmetic (a compare here becomes a branch
-     * around the loads): over = all ones where q > N - 1 */
+    /* row min(q, N - 1), in bounds; past the table the series below
+     * replace its values */
     const double *t = psik__sc_l1pe_tab + 3 * (iq < PSIK_SC_L1PE_N ? iq : PSIK_SC_L1PE_N - 1);
     double c2 = ch * ch;
     double sl = PSIK_SC_MAD(c2, PSIK_SC_MAD(ch, PSIK_SC_MAD(ch, PSIK_SC_MAD(ch, 0.2, -0.25),
