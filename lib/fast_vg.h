@@ -50,6 +50,12 @@ enum { PSIK_VGA_ALPHA = 0, PSIK_VGA_N = 1, PSIK_VGA_M = 2, PSIK_VGA_K = 3,
  * this. */
 PSIK_HIDDEN int psik__vg_point_scalar(const double *aux, int model, double s, psik_point *out);
 
+/* Se = (1 + x)^-m alone through the same code, for aux slots whose k = m n
+ * is exact in a double (vgm, vgb, vgm_ae's unrestricted curve): 1 and *se,
+ * or 0 where the point returns 0. The same bits as the point's Se for vgm
+ * and vgb (the same exponent and the same exp). */
+PSIK_HIDDEN int psik__vg_se_scalar(const double *aux, double s, double *se);
+
 /* psik_family.eval of vgm, vgm_ae and vgb: that point, clamped and
  * assembled into *out as eval.c does (same bits), or 0 where the point
  * returns 0. */

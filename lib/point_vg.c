@@ -45,14 +45,18 @@ PSIK_FM void sc_mul(double c, double xh, double xl, double *ph, double *pl)
     *pl = PSIK_SC_MAD(c, xl, e);
 }
 
-PSIK_FM int sc_core(const double *aux, double s, int half, int model, psik_point *out)
+/* The exponents, shared by the whole point and by Se alone: t = n log p
+ * (th + tl), a = e^(-|t|), and ln Se = eS, ln y^m = eY as unnormalised
+ * pairs. Returns 0 outside the core's range (p not normal, |t| > 700). */
+typedef struct sc_exps {
+    double th, a, eSh, eSl, eYh, eYl;
+} sc_exps;
+
+PSIK_FM int sc_exponents(const double *aux, double s, sc_exps *o)
 {
-    const double alpha = aux[PSIK_VGA_ALPHA], n = aux[PSIK_VGA_N], m = aux[PSIK_VGA_M];
-    const double k = aux[PSIK_VGA_K], ka = k * alpha;
-    const double l = model == PSIK_VGC_BURDINE ? 0.5 : aux[PSIK_VGA_L];
-    double p = alpha * s;
-    double lph, lpl, th, tl, ah, al, a, bh, bl, mbh, mbl, kh, kl, dh, dl, eSh, eSl, eYh, eYl;
-    double S, ym, em1, g, inv, y, r, invp, dls, dg, se, G, dG, seL, kr, dkr, sg;
+    const double n = aux[PSIK_VGA_N], m = aux[PSIK_VGA_M], k = aux[PSIK_VGA_K];
+    double p = aux[PSIK_VGA_ALPHA] * s;
+    double lph, lpl, th, tl, ah, al, a, bh, bl, mbh, mbl, kh, kl, dh, dl, sg;
     if (!(p >= DBL_MIN && p <= DBL_MAX))
         return 0;
     lph = psik__sc_log_dd(p, &lpl);
@@ -70,10 +74,32 @@ PSIK_FM int sc_core(const double *aux, double s, int half, int model, psik_point
     psik__fm_two_sum(kh, -mbh, &dh, &dl);
     dl = dl + (kl - mbl);
     /* wet: ln Se = -m b, ln y^m = d; dry: ln Se = d, ln y^m = -m b */
-    eSh = psik__sc_sel_le(th, 0.0, -mbh, dh);
-    eSl = psik__sc_sel_le(th, 0.0, -mbl, dl);
-    eYh = psik__sc_sel_le(th, 0.0, dh, -mbh);
-    eYl = psik__sc_sel_le(th, 0.0, dl, -mbl);
+    o->th = th;
+    o->a = a;
+    o->eSh = psik__sc_sel_le(th, 0.0, -mbh, dh);
+    o->eSl = psik__sc_sel_le(th, 0.0, -mbl, dl);
+    o->eYh = psik__sc_sel_le(th, 0.0, dh, -mbh);
+    o->eYl = psik__sc_sel_le(th, 0.0, dl, -mbl);
+    return 1;
+}
+
+PSIK_FM int sc_core(const double *aux, double s, int half, int model, psik_point *out)
+{
+    const double alpha = aux[PSIK_VGA_ALPHA], m = aux[PSIK_VGA_M];
+    const double k = aux[PSIK_VGA_K], ka = k * alpha;
+    const double l = model == PSIK_VGC_BURDINE ? 0.5 : aux[PSIK_VGA_L];
+    double p = alpha * s;
+    double th, a, eSh, eSl, eYh, eYl;
+    double S, ym, em1, g, inv, y, r, invp, dls, dg, se, G, dG, seL, kr, dkr;
+    sc_exps e;
+    if (!sc_exponents(aux, s, &e))
+        return 0;
+    th = e.th;
+    a = e.a;
+    eSh = e.eSh;
+    eSl = e.eSl;
+    eYh = e.eYh;
+    eYl = e.eYl;
     S = psik__sc_exp_dd(eSh, eSl);
     psik__sc_exp_expm1_dd(eYh, eYl, &ym, &em1);
     g = -em1;
@@ -149,6 +175,18 @@ PSIK_HIDDEN int PSIK_ISA_FN(psik__vg_point_sc)(const double *aux, int model, dou
     return sc_dispatch(aux, model, s, out);
 }
 
+/* Se alone (psik_se, psik_theta of vgm, vgb, vg_free_m): the exponents
+ * and one exp, Se = exp(eS) in (0, 1]. Returns 0 where sc_exponents does. */
+PSIK_HIDDEN int PSIK_ISA_FN(psik__vg_se_sc)(const double *aux, double s, double *se);
+PSIK_HIDDEN int PSIK_ISA_FN(psik__vg_se_sc)(const double *aux, double s, double *se)
+{
+    sc_exps e;
+    if (!sc_exponents(aux, s, &e))
+        return 0;
+    *se = psik__sc_exp_dd(e.eSh, e.eSl);
+    return 1;
+}
+
 /* psik_eval's unsaturated case (psik_family.eval): the point, clamped and
  * assembled exactly as eval.c does, without the copies between. For the
  * kinds whose values lie in range by construction (Se = exp of a
@@ -202,6 +240,14 @@ PSIK_ISA_SELECT(psik_eval_fn, psik__vgb_eval)
 PSIK_HIDDEN int psik__vg_point_scalar(const double *aux, int model, double s, psik_point *out)
 {
     return psik__vg_point_sc_pick()(aux, model, s, out);
+}
+
+typedef int vg_se_sc_t(const double *aux, double s, double *se);
+PSIK_ISA_SELECT(vg_se_sc_t, psik__vg_se_sc)
+
+PSIK_HIDDEN int psik__vg_se_scalar(const double *aux, double s, double *se)
+{
+    return psik__vg_se_sc_pick()(aux, s, se);
 }
 
 PSIK_HIDDEN int psik__vgm_eval_scalar(const psik_model *m, double s, psik_state *out)

@@ -326,16 +326,21 @@ static void vgm_point_se(const psik_model *m, double se, psik_point *out)
     vgm_fill(m->aux, &q, out);
 }
 
-/* Se alone (psik_se, psik_theta): the first half of vg_from_s, two or
- * three libm calls (pow among them), which since the one-point code of
- * point_vg.c cost about as much as that code's whole point (make bench:
- * vgm theta 58 ns, eval 56 ns); both meet the accuracy goal and agree
- * within a few ulp (tests/unit/test_sweeps.c). */
+/* Se alone (psik_se, psik_theta): where k = m n is exact in a double
+ * (vgm, vgb, and vgm_ae's unrestricted curve; not vg_free_m, whose k needs
+ * two parts) through point_vg.c's code (log, log1p(exp), exp: the same
+ * bits as psik_eval's Se for vgm and vgb); elsewhere, and where that code
+ * does not apply (|n log(alpha s)| > 700, alpha s not normal), the first
+ * half of vg_from_s, two or three libm calls. Both meet the
+ * accuracy goal (tests/unit/test_accuracy.c) and agree within a few ulp
+ * (tests/unit/test_sweeps.c). */
 static double vg_se(const psik_model *m, double s)
 {
     const double *a = m->aux;
     const double n = a[A_N], mm = a[A_M];
-    double p = a[A_ALPHA] * s;
+    double p = a[A_ALPHA] * s, se;
+    if (a[A_KEXACT] != 0.0 && psik__vg_se_scalar(a, s, &se))
+        return se;
     if (p <= 1.0)
         return exp(-mm * log1p(pow(p, n)));
     if (a[A_KEXACT] != 0.0)
