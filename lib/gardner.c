@@ -5,10 +5,12 @@
  * the pair used by analytical infiltration and steady-flux solutions
  * (matric flux potential K/alpha exactly).
  *
- * Method: every evaluator takes the fused point of batch_gardner.c
- * (alpha s in two doubles, so about 1 ulp whatever alpha s); from Se
- * (inverse, K(theta), D(theta)) s = -ln(Se)/alpha and Kr = Se directly.
- * Error: about 1 ulp x max(1, alpha s) (tests/unit/test_accuracy.c).
+ * Method: every evaluator takes the one-point code of point_gardner.c
+ * (alpha s in two doubles, so about 1 ulp whatever alpha s; psik_eval
+ * through .eval), or for alpha s > 700 the batch kernel's point of
+ * batch_gardner.c; from Se (inverse, K(theta), D(theta)) s = -ln(Se)/alpha
+ * and Kr = Se directly. Error: about 1 ulp x max(1, alpha s)
+ * (tests/unit/test_accuracy.c); psik_eval_batch agrees to 1e-14.
  */
 #include "psik_internal.h"
 #include "fast_simple.h"
@@ -18,13 +20,15 @@
 #define P_ALPHA 2
 #define A_ALPHA 0
 
-/* The fused point (batch_gardner.c): also what psik_kr and the batch give. */
+/* The one-point code, or the batch kernel's point where it declines. */
 static void g_point(const psik_model *m, double s, psik_point *out)
 {
-    psik__gardner_point_fast(m->aux[A_ALPHA], s, out);
+    if (!psik__gardner_point_scalar(m->aux[A_ALPHA], s, out))
+        psik__gardner_point_fast(m->aux[A_ALPHA], s, out);
 }
 
-/* Se = Kr, both from the point, so that every evaluator agrees bit for bit. */
+/* Se = Kr, both from the point, so that the one-point evaluators agree bit
+ * for bit. */
 static double g_se(const psik_model *m, double s)
 {
     psik_point p;
@@ -83,6 +87,7 @@ const psik_family psik__fam_gardner = {
     .check = g_check,
     .prepare = g_prepare,
     .point = g_point,
+    .eval = psik__gardner_eval_scalar,
     .se = g_se,
     .kr = g_se,
     .point_se = g_point_se,

@@ -172,6 +172,24 @@ static void test_table(void **state)
 
 static int n_sweep_points;
 
+/* Batch against the one-point functions: bit for bit where they share a
+ * kernel's code, within 1e-14 relative (absolutely below 1e-300) for the
+ * kinds whose one-point code is their own (lib/point_vg.c,
+ * lib/point_gardner.c), the issue's bound for the vectorised path. */
+static int own_point(psik_kind kind)
+{
+    return kind == PSIK_VGM || kind == PSIK_VGM_AE || kind == PSIK_VGB || kind == PSIK_GARDNER;
+}
+
+static int batch_agrees(psik_kind kind, double b, double s)
+{
+    if (b == s)
+        return 1;
+    if (!own_point(kind))
+        return 0;
+    return fabs(b - s) <= 1e-14 * fmax(fabs(b), fabs(s)) || fabs(b - s) < 1e-300;
+}
+
 static void sweep_one(const psik_model *m, double h, double *prev_se, double *prev_k)
 {
     psik_state st;
@@ -195,7 +213,8 @@ static void sweep_one(const psik_model *m, double h, double *prev_se, double *pr
     assert_true(st.se == se && st.theta == th && st.kr == kr && st.k == k);
     assert_true(st.capacity == c && st.dk_dh == dk);
     psik_eval_batch(m, 1, &h, &th_b, &k_b, &c_b, &dk_b);
-    assert_true(th_b == th && k_b == k && c_b == c && dk_b == dk);
+    assert_true(batch_agrees(m->kind, th_b, th) && batch_agrees(m->kind, k_b, k));
+    assert_true(batch_agrees(m->kind, c_b, c) && batch_agrees(m->kind, dk_b, dk));
 }
 
 /* |h| from 1e-300 to 1e300 (and subnormal), +-0, +-inf, NaN: finite, in
@@ -248,7 +267,8 @@ static void test_sweeps(void **state)
         }
     }
     printf("# sweeps: %zu parameter sets, %d heads each checked (finite, in range, "
-           "monotone, eval = batch = single functions), inverse monotone over 4001 Se\n",
+           "monotone, eval = single functions, batch equal or within 1e-14), inverse monotone "
+           "over 4001 Se\n",
            NSETS, n_sweep_points / (int)NSETS);
 }
 

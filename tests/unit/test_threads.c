@@ -39,7 +39,7 @@ typedef struct shared {
     /* serial results: [model][point] */
     double th[MAXM][NPT], k[MAXM][NPT], c[MAXM][NPT], dk[MAXM][NPT];
     /* serial psik_eval_batch (equal to psik_eval bit for bit but for the vG
-     * kinds, whose psik_eval has one-point code of its own) */
+     * kinds and Gardner, whose psik_eval has one-point code of its own) */
     double bth[MAXM][NPT], bk[MAXM][NPT], bc[MAXM][NPT], bdk[MAXM][NPT];
     double tth[MAXM][NPT], tk[MAXM][NPT], tc[MAXM][NPT], tdk[MAXM][NPT];
     double head[MAXM][NPT];
