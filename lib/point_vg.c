@@ -89,23 +89,16 @@ PSIK_FM int sc_core(const double *aux, double s, int half, int model, psik_point
     const double k = aux[PSIK_VGA_K], ka = k * alpha;
     const double l = model == PSIK_VGC_BURDINE ? 0.5 : aux[PSIK_VGA_L];
     double p = alpha * s;
-    double th, a, eSh, eSl, eYh, eYl;
     double S, ym, em1, g, inv, y, r, invp, dls, dg, se, G, dG, seL, kr, dkr;
     sc_exps e;
     if (!sc_exponents(aux, s, &e))
         return 0;
-    th = e.th;
-    a = e.a;
-    eSh = e.eSh;
-    eSl = e.eSl;
-    eYh = e.eYh;
-    eYl = e.eYl;
-    S = psik__sc_exp_dd(eSh, eSl);
-    psik__sc_exp_expm1_dd(eYh, eYl, &ym, &em1);
+    S = psik__sc_exp_dd(e.eSh, e.eSl);
+    psik__sc_exp_expm1_dd(e.eYh, e.eYl, &ym, &em1);
     g = -em1;
-    inv = 1.0 / (1.0 + a);
-    y = psik__sc_sel_le(th, 0.0, a * inv, inv);
-    r = psik__sc_sel_le(th, 0.0, inv, a * inv);
+    inv = 1.0 / (1.0 + e.a);
+    y = psik__sc_sel_le(e.th, 0.0, e.a * inv, inv);
+    r = psik__sc_sel_le(e.th, 0.0, inv, e.a * inv);
     invp = 1.0 / p;
     dls = ka * y * invp;
     dg = ka * ym * r * invp;
@@ -116,9 +109,9 @@ PSIK_FM int sc_core(const double *aux, double s, int half, int model, psik_point
         /* Se = S / Sc; near the entry head on the wet side as
          * exp(-m log1p((x - xe) / (1 + xe))), which keeps 1 - Se. */
         double xe = aux[PSIK_VGA_XE];
-        if (th <= 0.0 && xe <= 1.0) {
+        if (e.th <= 0.0 && xe <= 1.0) {
             double wh, wl, vh, vl;
-            wh = psik__sc_log1p_dd((a - xe) / (1.0 + xe), &wl);
+            wh = psik__sc_log1p_dd((e.a - xe) / (1.0 + xe), &wl);
             sc_mul(-m, wh, wl, &vh, &vl);
             se = psik__sc_exp_dd(vh, vl);
         } else {
@@ -138,8 +131,8 @@ PSIK_FM int sc_core(const double *aux, double s, int half, int model, psik_point
                     return 0;
                 esh = psik__sc_log_dd(se, &esl);
             } else {
-                esh = eSh;
-                esl = eSl;
+                esh = e.eSh;
+                esl = e.eSl;
             }
             sc_mul(l, esh, esl, &lh, &ll);
             if (!(lh <= 708.0 && lh >= -700.0))
@@ -175,8 +168,9 @@ PSIK_HIDDEN int PSIK_ISA_FN(psik__vg_point_sc)(const double *aux, int model, dou
     return sc_dispatch(aux, model, s, out);
 }
 
-/* Se alone (psik_se, psik_theta of vgm, vgb, vg_free_m): the exponents
- * and one exp, Se = exp(eS) in (0, 1]. Returns 0 where sc_exponents does. */
+/* Se alone (psik_se, psik_theta of vgm, vgb and vgm_ae's curve; see
+ * fast_vg.h): the exponents and one exp, Se = exp(eS) in (0, 1]. Returns 0
+ * where sc_exponents does. */
 PSIK_HIDDEN int PSIK_ISA_FN(psik__vg_se_sc)(const double *aux, double s, double *se);
 PSIK_HIDDEN int PSIK_ISA_FN(psik__vg_se_sc)(const double *aux, double s, double *se)
 {
