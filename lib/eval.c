@@ -123,12 +123,7 @@ PSIK_API void psik_eval(const psik_model *m, double h, psik_state *out)
     if (f->eval != NULL && f->eval(m, -h, out))
         return;
     point_at(f, m, -h, &p);
-    out->se = p.se;
-    out->theta = psik__theta_of(m, p.se);
-    out->kr = p.kr;
-    out->k = m->ks * p.kr;
-    out->capacity = psik__clamp_pos((m->theta_s - m->theta_r) * p.dse);
-    out->dk_dh = psik__clamp_pos(m->ks * p.dkr);
+    psik__state_of(m, p.se, p.kr, p.dse, p.dkr, out);
 }
 
 /* NaN into every output given (batch calls without usable input). */

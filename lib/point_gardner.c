@@ -41,21 +41,15 @@ PSIK_HIDDEN int PSIK_ISA_FN(psik__g_point_sc)(double alpha, double s, psik_point
 }
 
 /* psik_eval's unsaturated case: the point assembled as eval.c does (same
- * bits); Se = exp(-p) lies in [0, 1], so only dK/dh = ks alpha Se, which a
- * huge ks alpha could overflow, needs its clamp. */
+ * bits; Se = exp(-p) lies in [0, 1], so eval.c's clamps on the point are
+ * the identity). */
 PSIK_HIDDEN int PSIK_ISA_FN(psik__gardner_eval)(const psik_model *m, double s, psik_state *out);
 PSIK_HIDDEN int PSIK_ISA_FN(psik__gardner_eval)(const psik_model *m, double s, psik_state *out)
 {
-    double alpha = m->aux[0], se, d;
+    double alpha = m->aux[0], se;
     if (!g_sc(alpha, s, &se))
         return 0;
-    d = alpha * se;
-    out->se = se;
-    out->theta = psik__theta_of(m, se);
-    out->kr = se;
-    out->k = m->ks * se;
-    out->capacity = psik__clamp_pos((m->theta_s - m->theta_r) * d);
-    out->dk_dh = psik__clamp_pos(m->ks * d);
+    psik__state_of(m, se, se, alpha * se, alpha * se, out);
     return 1;
 }
 

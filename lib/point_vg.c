@@ -186,24 +186,17 @@ PSIK_HIDDEN int PSIK_ISA_FN(psik__vg_se_sc)(const double *aux, double s, double 
  * kinds whose values lie in range by construction (Se = exp of a
  * non-positive number, Kr = Se^(1/2) g^2 or Se^2 g with 0 <= g = -expm1(<=
  * 0) <= 1, dSe/dh finite: p >= DBL_MIN only on the wet side, where y/p =
- * p^(n-1)/(1+x)) the clamps on Se, Kr and C are the identity and are left
- * out; dK/dh, which overflows near saturation for n < 2, is clamped. */
+ * p^(n-1)/(1+x)) the clamps on the point's Se, Kr and dSe/ds are the
+ * identity and are left out; dKr/ds, which overflows near saturation for
+ * n < 2, is clamped, and psik__state_of clamps C and dK/dh as eval.c. */
 PSIK_FM int sc_eval(const psik_model *m, double s, int half, int model, psik_state *out)
 {
     psik_point p;
-    double se, kr, cap;
     int pure = half && model != PSIK_VGC_MUALEM_AE;
     if (!sc_core(m->aux, s, half, model, &p))
         return 0;
-    se = pure ? p.se : psik__clamp01(p.se);
-    kr = pure ? p.kr : psik__clamp01(p.kr);
-    cap = (m->theta_s - m->theta_r) * (pure ? p.dse : psik__clamp_pos(p.dse));
-    out->se = se;
-    out->theta = psik__theta_of(m, se);
-    out->kr = kr;
-    out->k = m->ks * kr;
-    out->capacity = pure ? cap : psik__clamp_pos(cap);
-    out->dk_dh = psik__clamp_pos(m->ks * psik__clamp_pos(p.dkr));
+    psik__state_of(m, pure ? p.se : psik__clamp01(p.se), pure ? p.kr : psik__clamp01(p.kr),
+                   pure ? p.dse : psik__clamp_pos(p.dse), psik__clamp_pos(p.dkr), out);
     return 1;
 }
 

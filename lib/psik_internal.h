@@ -100,6 +100,21 @@ static inline double psik__theta_of(const psik_model *m, double se)
     return t > m->theta_s ? m->theta_s : t;
 }
 
+/* psik_eval's result from a point whose Se and Kr lie in [0, 1] and whose
+ * dSe/ds and dKr/ds are not negative: theta, K, and C and dK/dh clamped
+ * (a product may overflow). eval.c and the one-point evals assemble
+ * through this, so that their bits agree. */
+static inline void psik__state_of(const psik_model *m, double se, double kr, double dse,
+                                  double dkr, psik_state *out)
+{
+    out->se = se;
+    out->theta = psik__theta_of(m, se);
+    out->kr = kr;
+    out->k = m->ks * kr;
+    out->capacity = psik__clamp_pos((m->theta_s - m->theta_r) * dse);
+    out->dk_dh = psik__clamp_pos(m->ks * dkr);
+}
+
 /* The table (kinds.c): psik__families[kind] for 0 < kind <
  * PSIK__NFAMILIES, NULL otherwise. */
 #define PSIK__NFAMILIES 11
